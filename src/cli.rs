@@ -1,0 +1,81 @@
+//! The command line: argument definitions, dispatch and exit codes.
+//!
+//! Exit codes: 0 success; 1 the command ran and failed (or found problems);
+//! 2 the command line or an input value was wrong, and nothing was done.
+
+mod calc;
+
+use std::process::ExitCode;
+
+use clap::{Parser, Subcommand};
+
+/// An input error: reported with exit code 2, and nothing was changed.
+#[derive(Debug, thiserror::Error)]
+#[error("{0}")]
+pub struct BadInput(pub String);
+
+/// Returns a [`BadInput`] error from a format string.
+macro_rules! bad_input {
+    ($($arg:tt)*) => { anyhow::Error::new($crate::cli::BadInput(format!($($arg)*))) };
+}
+pub(crate) use bad_input;
+
+#[derive(Debug, Parser)]
+#[command(
+    name = "tankwalk",
+    version,
+    about = "Morning water checks for rooms of fish tanks: toxic ammonia, risk bands and what to do",
+    after_help = tankwalk::CAUTION
+)]
+struct Cli {
+    #[command(subcommand)]
+    command: Option<Command>,
+}
+
+#[derive(Debug, Subcommand)]
+enum Command {
+    /// Compute toxic (un-ionized) ammonia and its band for one reading.
+    #[command(allow_negative_numbers = true)]
+    Calc(calc::CalcArgs),
+}
+
+/// Parses the command line, runs it and maps the outcome to an exit code.
+pub fn main() -> ExitCode {
+    let cli = match Cli::try_parse() {
+        Ok(cli) => cli,
+        Err(err) => {
+            // clap prints help/version to stdout (exit 0) and usage errors to stderr (exit 2).
+            let _ = err.print();
+            return ExitCode::from(if err.use_stderr() { 2 } else { 0 });
+        }
+    };
+    match run(cli) {
+        Ok(code) => code,
+        Err(err) => {
+            eprintln!("tankwalk: {err:#}");
+            ExitCode::from(if err.downcast_ref::<BadInput>().is_some() { 2 } else { 1 })
+        }
+    }
+}
+
+fn run(cli: Cli) -> anyhow::Result<ExitCode> {
+    match cli.command {
+        Some(Command::Calc(args)) => calc::run(&args),
+        None => {
+            use clap::CommandFactory;
+            Cli::command().print_help()?;
+            Ok(ExitCode::SUCCESS)
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn command_line_definition_is_consistent() {
+        use clap::CommandFactory;
+        Cli::command().debug_assert();
+    }
+}

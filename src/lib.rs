@@ -1,0 +1,20 @@
+//! tankwalk: morning water checks for rooms of fish tanks.
+//!
+//! The crate is layered so that dependencies point inward:
+//!
+//! - [`core`]: pure water chemistry (no I/O, no clock);
+//!
+//! The command line (`src/cli.rs`, in the binary) is the only place that
+//! prints, and the only place that uses `anyhow`.
+//!
+//! Everything tankwalk advises is guidance: see [`CAUTION`].
+
+pub mod core;
+pub mod numfmt;
+
+/// The caution shown with every assessment.
+pub const CAUTION: &str = "Guidance only, not veterinary advice. Local rules and licensed practice govern \
+water disposal and medication; for sick or dying fish, call an aquatic veterinarian.";
+
+/// How pH readings are interpreted, stated wherever NH3 is shown.
+pub const PH_CONVENTION: &str = "NBS-buffer glass-electrode or kit reading";
