@@ -28,8 +28,34 @@ pub(crate) use bad_input;
     after_help = tankwalk::CAUTION
 )]
 struct Cli {
+    #[command(flatten)]
+    global: GlobalArgs,
     #[command(subcommand)]
     command: Option<Command>,
+}
+
+/// Options every command accepts.
+#[derive(Debug, Clone, clap::Args)]
+pub struct GlobalArgs {
+    /// Facility file (TOML) of the room; otherwise the one used last.
+    #[arg(long, global = true, env = "TANKWALK_ROOM", value_name = "FILE")]
+    pub room: Option<std::path::PathBuf>,
+    /// Folder of the record store; otherwise the platform's per-user data folder.
+    #[arg(long, global = true, env = "TANKWALK_DATA", value_name = "DIR")]
+    pub data_dir: Option<std::path::PathBuf>,
+}
+
+impl GlobalArgs {
+    /// The data folder: `--data-dir`, `TANKWALK_DATA`, or the platform's per-user data folder.
+    #[allow(dead_code)] // the store commands use it
+    pub fn data_dir(&self) -> anyhow::Result<std::path::PathBuf> {
+        match &self.data_dir {
+            Some(dir) => Ok(dir.clone()),
+            None => tankwalk::paths::default_data_dir().ok_or_else(|| {
+                bad_input!("no per-user data folder is known on this system: give one with --data-dir or TANKWALK_DATA")
+            }),
+        }
+    }
 }
 
 #[derive(Debug, Subcommand)]

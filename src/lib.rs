@@ -11,6 +11,7 @@
 
 pub mod core;
 pub mod numfmt;
+pub mod paths;
 
 /// The caution shown with every assessment.
 pub const CAUTION: &str = "Guidance only, not veterinary advice. Local rules and licensed practice govern \
