@@ -3,6 +3,7 @@
 //! The crate is layered so that dependencies point inward:
 //!
 //! - [`core`]: pure water chemistry (no I/O, no clock);
+//! - [`model`]: the records of readings, events and corrections;
 //!
 //! The command line (`src/cli.rs`, in the binary) is the only place that
 //! prints, and the only place that uses `anyhow`.
@@ -10,6 +11,7 @@
 //! Everything tankwalk advises is guidance: see [`CAUTION`].
 
 pub mod core;
+pub mod model;
 pub mod numfmt;
 pub mod paths;
 
