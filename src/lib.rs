@@ -4,6 +4,7 @@
 //!
 //! - [`core`]: pure water chemistry (no I/O, no clock);
 //! - [`model`]: the records of readings, events and corrections;
+//! - [`store`]: durable storage of records (journal + sled);
 //!
 //! The command line (`src/cli.rs`, in the binary) is the only place that
 //! prints, and the only place that uses `anyhow`.
@@ -14,6 +15,7 @@ pub mod core;
 pub mod model;
 pub mod numfmt;
 pub mod paths;
+pub mod store;
 
 /// The caution shown with every assessment.
 pub const CAUTION: &str = "Guidance only, not veterinary advice. Local rules and licensed practice govern \
