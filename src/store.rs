@@ -157,6 +157,16 @@ pub enum StoreError {
         /// sled's message.
         message: String,
     },
+    /// The records reached the journal (they are safe, and the next open
+    /// applies them) but the database failed to take them.
+    #[error(
+        "the record is saved in the journal, but the record database failed ({message}); it will be applied \
+         the next time the store opens: run `tankwalk doctor` to check"
+    )]
+    JournalOnly {
+        /// What the database said.
+        message: String,
+    },
     /// The sled database will not open.
     #[error(
         "the record database in {} will not open ({message}); the journal keeps every saved record: \

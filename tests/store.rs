@@ -537,3 +537,20 @@ fn a_correction_whose_original_is_unknown_is_kept_and_resolves_later() {
     assert_eq!(entries.len(), 1);
     assert_eq!(entries[0].current_id(), fix.id);
 }
+
+#[test]
+fn a_half_written_sled_snapshot_left_by_a_kill_does_not_stop_the_open() {
+    // sled 0.34.7 would read `snap.<lsn>.generating` as the newest snapshot and
+    // report corruption (spacejam/sled#1527); tests/crash_safety.rs found it.
+    let dir = tempfile::tempdir().unwrap();
+    let records: Vec<Record> = (0..20).map(|i| reading(tank("T1"), i, 7.0)).collect();
+    {
+        let mut store = SledStore::open(dir.path()).unwrap();
+        store.append(&records).unwrap();
+    }
+    let stray = dir.path().join("store").join("snap.FFFFFFFFFFFFFFF0.generating");
+    fs::write(&stray, b"half a snapshot, cut short by SIGKILL").unwrap();
+    let store = SledStore::open(dir.path()).unwrap();
+    assert_eq!(store.len().unwrap(), 20);
+    assert!(!stray.exists());
+}

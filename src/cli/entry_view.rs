@@ -245,3 +245,29 @@ pub fn trail_lines(entry: &Entry) -> Vec<String> {
         })
         .collect()
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use tankwalk::model::record::MedicationClass;
+
+    #[test]
+    fn events_read_as_words() {
+        let wc = EventKind::WaterChange {
+            percent: 30.0,
+            source_ph: Some(7.4),
+            source_tan_n_mg_l: None,
+            source_temp_c: Some(24.0),
+            dechlorinated: false,
+        };
+        assert_eq!(describe_event(&wc), "water change 30 % (source pH 7.40, 24.0 °C, NOT dechlorinated)");
+        assert_eq!(
+            describe_event(&EventKind::Medication { class: MedicationClass::Antibiotic, name: "kanamycin".into() }),
+            "medication: kanamycin (antibiotic)"
+        );
+        assert_eq!(describe_event(&EventKind::SaltAdded { grams: 12.5 }), "12.5 g salt added");
+        assert_eq!(describe_event(&EventKind::NitrifyingCultureAdded), "nitrifying culture added");
+        assert_eq!(plain(100.0, 1), "100");
+        assert_eq!(plain(0.26, 1), "0.3");
+    }
+}

@@ -65,6 +65,7 @@ impl Database {
     /// panics on some damaged files) is reported as [`StoreError::Damaged`].
     pub fn open(path: &Path) -> Result<Database, StoreError> {
         let damaged = |message: String| StoreError::Damaged { path: path.to_path_buf(), message };
+        remove_unfinished_snapshots(path)?;
         let opened = catch_unwind(AssertUnwindSafe(|| -> Result<Database, sled::Error> {
             let db = sled::Config::new()
                 .path(path)
@@ -215,6 +216,33 @@ impl Database {
     pub fn plan(&self, items: Vec<(Record, Vec<u8>)>) -> Result<Plan, StoreError> {
         plan::plan(items, &|id| self.get(id))
     }
+}
+
+/// Removes sled's snapshot temporary files (`snap.<lsn>.generating`) left by
+/// a process killed while writing one.
+///
+/// sled 0.34.7 writes a snapshot to `snap.<lsn>.generating`, syncs it and only
+/// then renames it to `snap.<lsn>`; the rename is what makes it count. But
+/// when it looks for the newest snapshot it takes every name starting with
+/// `snap.` and the temporary file sorts last, so after such a kill it reads
+/// the half-written file and reports corruption (spacejam/sled#1527; found
+/// here by `tests/crash_safety.rs`). The temporary file never holds anything
+/// the older snapshot and the log do not, so it is removed. Only called with
+/// the data folder locked, so no other process is writing a snapshot.
+fn remove_unfinished_snapshots(path: &Path) -> Result<(), StoreError> {
+    let entries = match std::fs::read_dir(path) {
+        Ok(entries) => entries,
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(()),
+        Err(e) => return Err(StoreError::io("cannot read", path, e)),
+    };
+    for entry in entries.flatten() {
+        let name = entry.file_name();
+        let name = name.to_string_lossy();
+        if name.starts_with("snap.") && name.ends_with(".generating") {
+            std::fs::remove_file(entry.path()).map_err(|e| StoreError::io("cannot remove", entry.path(), e))?;
+        }
+    }
+    Ok(())
 }
 
 /// The text of a caught panic.
@@ -392,7 +420,12 @@ impl Store for SledStore {
         // The journal first: once it is synced the records survive whatever
         // happens to the database, and the next open applies them.
         let journal_len = self.journal.append(&lines)?;
-        self.database.apply(&plan, journal_len)?;
+        self.database.apply(&plan, journal_len).map_err(|e| StoreError::JournalOnly {
+            message: match e {
+                StoreError::Database { message, .. } => message,
+                other => other.to_string(),
+            },
+        })?;
         Ok(appended)
     }
 
