@@ -399,9 +399,6 @@ fn catch_up(database: &Database, journal_path: &Path, from: u64) -> Result<(usiz
         let end = chunk.last().map_or(from, |l| l.end);
         database.apply(&plan, end)?;
     }
-    if scan.records.is_empty() && scan.good_end() > from {
-        database.apply(&Plan { new: Vec::new(), skipped: 0 }, scan.good_end())?;
-    }
     Ok((count, set_aside))
 }
 
