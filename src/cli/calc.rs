@@ -353,15 +353,19 @@ fn write_table(w: &mut impl Write, out: &CalcOutput, parsed: &Parsed) -> std::io
     if let Some(t) = &out.tank {
         let unit = if t.volume_unit == "L" { VolumeUnit::Litre } else { VolumeUnit::UsGallon };
         let shown = |l: f64| format!("{} {}", sig(unit.from_litres(l), 3), unit.symbol());
-        let species = if t.species_names.is_empty() { "no species".to_string() } else { t.species_names.join(", ") };
-        row(w, "tank", format!("{}  {}  ({} animals; {})", t.id, species, t.stock_count, t.room))?;
+        let species =
+            if t.species_names.is_empty() { "none (empty tank)".to_string() } else { t.species_names.join(", ") };
+        row(w, "tank", format!("{}, {} animals  ({})", t.id, t.stock_count, t.room))?;
+        row(w, "species", species)?;
         let water = match &t.system {
-            Some(system) => format!(
-                "{} water volume, shared on system {system} (tank {})",
-                shown(t.water_volume_l),
-                shown(t.tank_volume_l)
-            ),
-            None => format!("{} water volume, standalone", shown(t.water_volume_l)),
+            Some(system) => {
+                format!(
+                    "{} shared on system {system} (the tank itself {})",
+                    shown(t.water_volume_l),
+                    shown(t.tank_volume_l)
+                )
+            }
+            None => format!("{}, standalone", shown(t.water_volume_l)),
         };
         row(w, "water", format!("{water}; {} water", t.water_type))?;
     }

@@ -62,6 +62,13 @@ fn write_errors(w: &mut impl Write, file: &Path, errors: &[Problem]) -> std::io:
     writeln!(w, "{n} error{}: {} is not a usable facility file", plural(n), file.display())
 }
 
+/// A number for reading: at most two decimals, trailing zeros dropped.
+fn number(x: f64) -> String {
+    let s = format!("{x:.2}");
+    let s = s.trim_end_matches('0').trim_end_matches('.');
+    if s == "-0" { "0".to_string() } else { s.to_string() }
+}
+
 fn plural(n: usize) -> &'static str {
     if n == 1 { "" } else { "s" }
 }
@@ -99,10 +106,10 @@ fn write_summary(w: &mut impl Write, file: &Path, checked: &Checked) -> std::io:
             parts.push(format!("pH {ph:.2}"));
         }
         if let Some(tan) = s.tan_n_mg_l {
-            parts.push(format!("{} mg/L TAN-N", sig(tan, 2)));
+            parts.push(format!("{} {}", number(room.kit_basis.from_tan_n(tan)), room.kit_basis.unit_label()));
         }
         if let Some(t) = s.temp_c {
-            parts.push(format!("{} °C", sig(t, 3)));
+            parts.push(format!("{} {}", number(room.temperature_unit.from_celsius(t)), room.temperature_unit.symbol()));
         }
         if s.chloramine {
             parts.push("chloramine".into());
@@ -112,16 +119,19 @@ fn write_summary(w: &mut impl Write, file: &Path, checked: &Checked) -> std::io:
         }
         row(w, "source", parts.join(" · "))?;
     }
+    let standalone = f.tanks.len() - on_systems;
+    let placement = match (on_systems, standalone) {
+        (0, _) => "all standalone".to_string(),
+        (_, 0) => format!("all on {} system{}", f.systems.len(), plural(f.systems.len())),
+        _ => format!("{on_systems} on {} system{}, {standalone} standalone", f.systems.len(), plural(f.systems.len())),
+    };
     row(
         w,
         "stock",
         format!(
-            "{} tank{} ({on_systems} on {} system{}, {} standalone), {} animals, {} species",
+            "{} tank{} ({placement}), {} animals, {} species",
             f.tanks.len(),
             plural(f.tanks.len()),
-            f.systems.len(),
-            plural(f.systems.len()),
-            f.tanks.len() - on_systems,
             f.total_stock(),
             f.species.len()
         ),
@@ -129,7 +139,7 @@ fn write_summary(w: &mut impl Write, file: &Path, checked: &Checked) -> std::io:
     row(w, "water", format!("{} in all", volume(f.total_water_l(), unit)))?;
     for (i, s) in f.systems.iter().take(SYSTEMS_SHOWN).enumerate() {
         let label = if i == 0 { "systems" } else { "" };
-        let salt = if s.salinity_g_l > 0.0 { format!(" {} g/L", sig(s.salinity_g_l, 3)) } else { String::new() };
+        let salt = if s.salinity_g_l > 0.0 { format!(" {} g/L", number(s.salinity_g_l)) } else { String::new() };
         row(
             w,
             label,

@@ -95,6 +95,8 @@ struct BuiltSystem {
     /// Spans of the listed tank ids, parallel to the raw list (`None` where the id was bad).
     listed: Vec<(Option<Id>, Range<usize>)>,
     volume_span: Range<usize>,
+    id_span: Range<usize>,
+    index: usize,
 }
 
 struct BuiltTank {
@@ -663,13 +665,6 @@ impl Validator<'_, '_> {
             .enumerate()
             .map(|(i, t)| (self.id(t, &format!("{path}.tanks[{i}]"), &format!("{subject}: tank id")), t.span()))
             .collect();
-        if raw.tanks.is_empty() {
-            self.ctx.warn(
-                &raw.id.span(),
-                &format!("{path}.tanks"),
-                format!("{subject} lists no tanks and no tank names it; list them with tanks = [..] or set system on each tank"),
-            );
-        }
         if self.ctx.error_count() > errors {
             return None;
         }
@@ -688,6 +683,8 @@ impl Validator<'_, '_> {
             },
             listed,
             volume_span,
+            id_span: raw.id.span(),
+            index: entry.index,
         })
     }
 
@@ -936,6 +933,16 @@ impl Validator<'_, '_> {
             }
             system.system.tanks =
                 unique.iter().filter_map(|ti| tanks[*ti].as_ref().map(|t| t.tank.id.clone())).collect();
+            if system.system.tanks.is_empty() && system.listed.is_empty() {
+                self.ctx.warn(
+                    &system.id_span,
+                    &format!("systems[{}].tanks", system.index),
+                    format!(
+                        "system '{}' has no tanks: list them here with tanks = [..], or give each tank system = \"{}\"",
+                        system.system.id, system.system.id
+                    ),
+                );
+            }
             for ti in unique {
                 if let Some(t) = tanks[ti].as_mut() {
                     t.tank.system = Some(system.system.id.clone());
