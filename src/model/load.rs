@@ -352,7 +352,7 @@ pub(super) fn closest<'c>(word: &str, candidates: &[&'c str]) -> Option<&'c str>
     candidates
         .iter()
         .map(|c| (strsim::damerau_levenshtein(&word, &c.to_ascii_lowercase()), *c))
-        .filter(|(distance, c)| *distance <= (c.len() / 3).max(1))
+        .filter(|(distance, c)| *distance <= c.len().div_ceil(3))
         .min_by_key(|(distance, _)| *distance)
         .map(|(_, c)| c)
 }
