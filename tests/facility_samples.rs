@@ -168,3 +168,25 @@ fn broken_fixture_reports_every_planted_error_on_its_line() {
         assert_eq!(e.file, path);
     }
 }
+
+#[test]
+fn the_documented_example_is_a_valid_room() {
+    let doc = std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join("docs/facility-format.md")).unwrap();
+    let (_, after) = doc.split_once("## A complete example").expect("the example section");
+    let (_, block) = after.split_once("```toml\n").expect("a toml block");
+    let (example, _) = block.split_once("```").expect("the end of the block");
+    let checked = Facility::check(example, Path::new("example.toml"), Some(today())).unwrap_or_else(|e| panic!("{e}"));
+    assert!(checked.warnings.is_empty(), "{:?}", checked.warnings);
+    let f = checked.facility;
+    // The mixed tank takes the corydoras' edges and the overlap of both temperature ranges.
+    let d2 = f.effective_profile(f.tank("D-2").unwrap());
+    assert_eq!(d2.band_edges.watch, 0.015);
+    let t = d2.temp_c.unwrap();
+    assert!((t.min - 22.222).abs() < 1e-3 && (t.max - 26.111).abs() < 1e-3, "{t:?}");
+    // 29 US gal is 109.78 L; the source water's 0.2 mg/L as NH3 is 0.1645 mg/L as N.
+    assert!((f.tank("Q-1").unwrap().volume_l - 109.777).abs() < 1e-3);
+    let tan = f.room.source_water.as_ref().unwrap().tan_n_mg_l.unwrap();
+    assert!((tan - 0.2 * 14.007 / 17.031).abs() < 1e-12);
+    let round: Vec<&str> = f.round().iter().map(|t| t.id.as_str()).collect();
+    assert_eq!(round, ["Q-1", "D-1", "D-2", "D-3"]);
+}
