@@ -356,13 +356,13 @@ fn band_edges_given_as_nh3_are_stored_as_nh3_n() {
 #[test]
 fn tank_volume_not_positive() {
     let text = TANKS.replacen("volume_l = 100", "volume_l = 0 # <-", 1);
-    one_error(&format!("{ROOM}{GUPPY}{RACK}{text}"), "tank 'A-01': volume must be more than 0, not 0");
+    one_error(&format!("{ROOM}{GUPPY}{RACK}{text}"), "tank 'A-01': volume must be a number above 0, not 0");
 }
 
 #[test]
 fn system_volume_not_positive() {
     let r = RACK.replace("volume_l = 500", "volume_l = -500 # <-");
-    one_error(&format!("{ROOM}{GUPPY}{r}{TANKS}"), "system 'RACK-A': volume must be more than 0, not -500");
+    one_error(&format!("{ROOM}{GUPPY}{r}{TANKS}"), "system 'RACK-A': volume must be a number above 0, not -500");
 }
 
 #[test]
@@ -628,4 +628,20 @@ fn every_error_is_reported_in_file_order() {
     let mut sorted = lines.clone();
     sorted.sort();
     assert_eq!(lines, sorted);
+}
+
+#[test]
+fn duplicate_key_is_named() {
+    let text =
+        "[room]\nname = \"Test room\"\nname = \"Again\" # <-\nkit_basis = \"n\"\n".to_string() + GUPPY + RACK + TANKS;
+    one_error(&text, "not valid TOML: duplicate key 'name' (a key may appear once in each table)");
+}
+
+#[test]
+fn a_list_written_as_one_table_is_explained() {
+    let guppy = GUPPY.replace("[[species]]", "[species] # <-");
+    one_error(
+        &format!("{ROOM}{guppy}{RACK}{TANKS}"),
+        "'species' must be a list of tables: write each entry as [[species]]",
+    );
 }

@@ -158,7 +158,7 @@ fn broken_fixture_reports_every_planted_error_on_its_line() {
         "system 'FISH-2' holds 300 L in all, less than",
         "tank 'S-01' is on two systems",
         "tank 'S-05': unknown species 'yelowtang' (did you mean 'yellowtang'?)",
-        "tank 'N-03': volume must be more than 0",
+        "tank 'N-03': volume must be a number above 0",
         "'mbuna' is a freshwater species",
         "tank 'N-05': unknown field 'stock'",
         "duplicate id 'S-10'",

@@ -245,7 +245,7 @@ impl Validator<'_, '_> {
         let field = format!("{path}.{}", if is_litres { "volume_l" } else { "volume_gal" });
         let v = *value.get_ref();
         if !(v.is_finite() && v > 0.0) {
-            self.ctx.error(&value.span(), &field, format!("{subject}: volume must be more than 0, not {v}"));
+            self.ctx.error(&value.span(), &field, format!("{subject}: volume must be a number above 0, not {v}"));
             return None;
         }
         let l = if is_litres { v } else { units::us_gallons_to_litres(v) };
