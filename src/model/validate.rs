@@ -837,11 +837,9 @@ impl Validator<'_, '_> {
         let mut listed_on: HashMap<usize, (usize, Range<usize>)> = HashMap::new();
         for (si, system) in systems.iter().enumerate() {
             let Some(system) = system else { continue };
-            let sys_index =
-                raw_systems.iter().position(|e| e.raw.id.get_ref() == system.system.id.as_str()).unwrap_or(si);
             for (li, (id, span)) in system.listed.iter().enumerate() {
                 let Some(id) = id else { continue };
-                let field = format!("systems[{}].tanks[{li}]", raw_systems[sys_index].index);
+                let field = format!("systems[{}].tanks[{li}]", system.index);
                 let subject = format!("system '{}'", system.system.id);
                 let Some(&ti) = tank_at.get(&id.as_str().to_ascii_lowercase()) else {
                     if !self.is_unreadable(id.as_str()) {
