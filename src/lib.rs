@@ -12,6 +12,7 @@
 pub mod core;
 pub mod numfmt;
 pub mod paths;
+pub mod rules;
 
 /// The caution shown with every assessment.
 pub const CAUTION: &str = "Guidance only, not veterinary advice. Local rules and licensed practice govern \
