@@ -3,6 +3,8 @@
 //! The crate is layered so that dependencies point inward:
 //!
 //! - [`core`]: pure water chemistry (no I/O, no clock);
+//! - [`model`]: the facility (room, species profiles, systems, tanks), parsed
+//!   and validated from its TOML file;
 //!
 //! The command line (`src/cli.rs`, in the binary) is the only place that
 //! prints, and the only place that uses `anyhow`.
@@ -10,6 +12,7 @@
 //! Everything tankwalk advises is guidance: see [`CAUTION`].
 
 pub mod core;
+pub mod model;
 pub mod numfmt;
 pub mod paths;
 pub mod rules;
