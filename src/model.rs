@@ -1,5 +1,6 @@
-//! The facility model: one room's species profiles, shared systems and tanks,
-//! read from a TOML facility file (`docs/facility-format.md`).
+//! The facility model (one room's species profiles, shared systems and tanks,
+//! read from a TOML facility file, `docs/facility-format.md`) and the records
+//! of what happens in it (readings, events, corrections).
 //!
 //! Parsing takes text and returns every problem it finds, each located by
 //! file, line and column; reading the file is the thin [`Facility::load`].
@@ -9,6 +10,7 @@
 pub mod facility;
 pub mod id;
 pub mod problem;
+pub mod record;
 pub mod species;
 
 pub use facility::{
