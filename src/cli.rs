@@ -4,6 +4,8 @@
 //! 2 the command line or an input value was wrong, and nothing was done.
 
 mod calc;
+mod check_room;
+mod room;
 
 use std::process::ExitCode;
 
@@ -47,7 +49,6 @@ pub struct GlobalArgs {
 
 impl GlobalArgs {
     /// The data folder: `--data-dir`, `TANKWALK_DATA`, or the platform's per-user data folder.
-    #[allow(dead_code)] // the store commands use it
     pub fn data_dir(&self) -> anyhow::Result<std::path::PathBuf> {
         match &self.data_dir {
             Some(dir) => Ok(dir.clone()),
@@ -63,6 +64,8 @@ enum Command {
     /// Compute toxic (un-ionized) ammonia and its band for one reading.
     #[command(allow_negative_numbers = true)]
     Calc(calc::CalcArgs),
+    /// Check a facility file: list every error with its line, or summarise the room.
+    CheckRoom(check_room::CheckRoomArgs),
 }
 
 /// Parses the command line, runs it and maps the outcome to an exit code.
@@ -86,7 +89,8 @@ pub fn main() -> ExitCode {
 
 fn run(cli: Cli) -> anyhow::Result<ExitCode> {
     match cli.command {
-        Some(Command::Calc(args)) => calc::run(&args),
+        Some(Command::Calc(args)) => calc::run(&args, &cli.global),
+        Some(Command::CheckRoom(args)) => check_room::run(&args),
         None => {
             use clap::CommandFactory;
             Cli::command().print_help()?;
