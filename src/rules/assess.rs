@@ -445,10 +445,7 @@ impl Plan<'_> {
                 ActionKind::RemoveDead,
                 f64::from(o.deaths),
                 "fish",
-                format!(
-                    "{} dead: take them out now (decay adds ammonia) and record them as an event",
-                    o.deaths
-                ),
+                format!("{} dead: take them out now (decay adds ammonia) and record them as an event", o.deaths),
             ));
         }
         if o.any_sign() || o.deaths > 0 {
@@ -563,7 +560,8 @@ impl Plan<'_> {
                 format!("{reason}; check the filter runs, is not clogged and was not disturbed"),
             ));
         }
-        let recent_culture = had_event(self.inputs, Duration::days(7), |k| matches!(k, EventKind::NitrifyingCultureAdded));
+        let recent_culture =
+            had_event(self.inputs, Duration::days(7), |k| matches!(k, EventKind::NitrifyingCultureAdded));
         if (cycling || at_risk) && measured >= Band::Watch && !recent_culture {
             self.actions.push(Action::plain(
                 ActionKind::NitrifyingCulture,
@@ -607,7 +605,11 @@ impl Plan<'_> {
                 let percent = (p.fraction_each * 100.0).round();
                 let (amount, unit) = self.units.volume_value(p.litres_each);
                 let steps = if p.changes > 1 {
-                    format!("{} changes of {percent:.0} % ({} each, testing between changes)", p.changes, self.units.volume(p.litres_each))
+                    format!(
+                        "{} changes of {percent:.0} % ({} each, testing between changes)",
+                        p.changes,
+                        self.units.volume(p.litres_each)
+                    )
                 } else {
                     format!("one change of {percent:.0} % ({})", self.units.volume(p.litres_each))
                 };
@@ -875,13 +877,17 @@ impl Plan<'_> {
                 .filter(|p| p.at < self.inputs.at)
                 .filter_map(|p| sample_of(p.reading, salinity).map(|s| (p.at, s)))
                 .max_by_key(|p| p.0);
-            let previous_clear = previous.is_some_and(|(_, s)| {
-                self.edges.classify(nh3_n_at(&s, s.temp_c, s.salinity_ppt)) == Band::Clear
-            });
+            let previous_clear = previous
+                .is_some_and(|(_, s)| self.edges.classify(nh3_n_at(&s, s.temp_c, s.salinity_ppt)) == Band::Clear);
             if previous_clear && !reading.observations.any_sign() {
                 self.actions.push(Action::plain(
                     ActionKind::ResumeFeeding,
                     "two readings in a row are clear: resume feeding with small rations and build up over a few days",
+                ));
+            } else {
+                self.actions.push(Action::plain(
+                    ActionKind::HoldFeeding,
+                    "one clear reading so far: keep feeding held until the next reading is clear too",
                 ));
             }
         }
