@@ -4,7 +4,8 @@
 //!
 //! - [`core`]: pure water chemistry (no I/O, no clock);
 //! - [`model`]: the facility (room, species profiles, systems, tanks), parsed
-//!   and validated from its TOML file;
+//!   and validated from its TOML file, and the records of readings, events and
+//!   corrections;
 //!
 //! The command line (`src/cli.rs`, in the binary) is the only place that
 //! prints, and the only place that uses `anyhow`.
@@ -15,6 +16,7 @@ pub mod core;
 pub mod model;
 pub mod numfmt;
 pub mod paths;
+pub mod rules;
 
 /// The caution shown with every assessment.
 pub const CAUTION: &str = "Guidance only, not veterinary advice. Local rules and licensed practice govern \

@@ -1,5 +1,6 @@
-//! The facility model: one room's species profiles, shared systems and tanks,
-//! read from a TOML facility file (`docs/facility-format.md`).
+//! The facility model (one room's species profiles, shared systems and tanks,
+//! read from a TOML facility file, `docs/facility-format.md`) and the records
+//! of what happens in it (readings, events, corrections).
 //!
 //! Parsing takes text and returns every problem it finds, each located by
 //! file, line and column; reading the file is the thin [`Facility::load`].
@@ -11,6 +12,7 @@ pub mod id;
 mod load;
 pub mod problem;
 mod raw;
+pub mod record;
 pub mod species;
 mod validate;
 mod write;
