@@ -3,6 +3,7 @@
 //! Exit codes: 0 success; 1 the command ran and failed (or found problems);
 //! 2 the command line or an input value was wrong, and nothing was done.
 
+mod advice;
 mod calc;
 mod check_room;
 mod room;
