@@ -3,7 +3,9 @@
 //! Exit codes: 0 success; 1 the command ran and failed (or found problems);
 //! 2 the command line or an input value was wrong, and nothing was done.
 
+mod advice;
 mod calc;
+mod check_room;
 mod correct;
 mod doctor;
 mod entry_view;
@@ -12,6 +14,7 @@ mod input;
 mod log;
 mod rebuild;
 mod record;
+mod room;
 
 use std::process::ExitCode;
 
@@ -70,6 +73,8 @@ enum Command {
     /// Compute toxic (un-ionized) ammonia and its band for one reading.
     #[command(allow_negative_numbers = true)]
     Calc(calc::CalcArgs),
+    /// Check a facility file: list every error with its line, or summarise the room.
+    CheckRoom(check_room::CheckRoomArgs),
     /// Save a reading of a tank or a system; prints its id, NH3 and band.
     Record(record::RecordArgs),
     /// Save something done to a tank or a system (water change, medication, ...).
@@ -137,7 +142,8 @@ fn is_broken_pipe(err: &anyhow::Error) -> bool {
 
 fn run(cli: Cli) -> anyhow::Result<ExitCode> {
     match cli.command {
-        Some(Command::Calc(args)) => calc::run(&args),
+        Some(Command::Calc(args)) => calc::run(&args, &cli.global),
+        Some(Command::CheckRoom(args)) => check_room::run(&args),
         Some(Command::Record(args)) => record::run(&cli.global, &args),
         Some(Command::Event(args)) => event::run(&cli.global, &args),
         Some(Command::Correct(args)) => correct::run(&cli.global, &args),

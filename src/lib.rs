@@ -3,7 +3,9 @@
 //! The crate is layered so that dependencies point inward:
 //!
 //! - [`core`]: pure water chemistry (no I/O, no clock);
-//! - [`model`]: the records of readings, events and corrections;
+//! - [`model`]: the facility (room, species profiles, systems, tanks), parsed
+//!   and validated from its TOML file, and the records of readings, events and
+//!   corrections;
 //! - [`store`]: durable storage of records (journal + sled);
 //!
 //! The command line (`src/cli.rs`, in the binary) is the only place that
@@ -15,6 +17,7 @@ pub mod core;
 pub mod model;
 pub mod numfmt;
 pub mod paths;
+pub mod rules;
 pub mod store;
 
 /// The caution shown with every assessment.

@@ -35,6 +35,10 @@ const META_SCHEMA: &[u8] = b"schema_version";
 const META_DEVICE: &[u8] = b"device";
 const META_APPLIED: &[u8] = b"journal_applied";
 
+/// How long to wait for sled's own lock on a database just closed in this process.
+const LOCK_PATIENCE: std::time::Duration = std::time::Duration::from_secs(3);
+const LOCK_RETRY: std::time::Duration = std::time::Duration::from_millis(20);
+
 /// Records applied to the database per transaction when catching up or rebuilding.
 pub(crate) const CHUNK: usize = 5_000;
 
@@ -64,6 +68,23 @@ impl Database {
     /// Opens (or creates) the database in `path`; a panic inside sled (it
     /// panics on some damaged files) is reported as [`StoreError::Damaged`].
     pub fn open(path: &Path) -> Result<Database, StoreError> {
+        // The data folder is locked by the caller, so no other tankwalk holds
+        // the database. sled's own lock can still be held for a moment by a
+        // database this process has just dropped (sled's threads close its
+        // files shortly after), so a refused lock is retried for a while.
+        let mut waited = std::time::Duration::ZERO;
+        loop {
+            match Database::open_once(path) {
+                Err(StoreError::InUse { .. }) if waited < LOCK_PATIENCE => {
+                    std::thread::sleep(LOCK_RETRY);
+                    waited += LOCK_RETRY;
+                }
+                other => return other,
+            }
+        }
+    }
+
+    fn open_once(path: &Path) -> Result<Database, StoreError> {
         let damaged = |message: String| StoreError::Damaged { path: path.to_path_buf(), message };
         remove_unfinished_snapshots(path)?;
         let opened = catch_unwind(AssertUnwindSafe(|| -> Result<Database, sled::Error> {
