@@ -155,6 +155,20 @@ pub fn run(global: &GlobalArgs, args: &CorrectArgs) -> Result<ExitCode> {
                     event.target = place.target.clone();
                 }
             }
+            RecordBody::Skip(skip) => {
+                if !args.reading.is_empty() || !args.clear.is_empty() || new_kind.is_some() {
+                    return Err(bad_input!(
+                        "{} is a skipped tank: correct its reason with --note, or withdraw it",
+                        args.id
+                    ));
+                }
+                if let Some(note) = &args.note {
+                    skip.reason.clone_from(note);
+                }
+                if let Some(place) = &new_place {
+                    skip.target = place.target.clone();
+                }
+            }
             RecordBody::Correction(_) => {
                 return Err(bad_input!("{} has no value to correct", args.id));
             }

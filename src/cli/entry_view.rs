@@ -109,11 +109,7 @@ pub fn entry_json(entry: &Entry, room: Option<&Path>) -> EntryJson {
         signs: reading.map(|r| r.observations.signs().into_iter().map(|s| s.name()).collect()).unwrap_or_default(),
         deaths: reading.map(|r| r.observations.deaths),
         event: body.as_event().map(|e| e.kind.clone()),
-        note: match body {
-            RecordBody::Reading(r) => r.note.clone(),
-            RecordBody::Event(e) => e.note.clone(),
-            RecordBody::Correction(_) => None,
-        },
+        note: body.note().map(str::to_string),
         measurements: m.cloned(),
         trail: if entry.is_corrected() { entry.trail().cloned().collect() } else { Vec::new() },
     }
@@ -215,6 +211,7 @@ pub fn describe(body: &RecordBody) -> String {
             Some(b) => describe(b),
             None => "withdrawn".into(),
         },
+        RecordBody::Skip(s) => format!("skipped: {}", s.reason),
     }
 }
 

@@ -113,11 +113,7 @@ pub fn run(global: &GlobalArgs, args: &LogArgs) -> Result<ExitCode> {
             entry.original.id,
             entry.original.operator
         )?;
-        let note = entry.current().and_then(|b| match b {
-            tankwalk::model::record::RecordBody::Reading(r) => r.note.clone(),
-            tankwalk::model::record::RecordBody::Event(e) => e.note.clone(),
-            tankwalk::model::record::RecordBody::Correction(_) => None,
-        });
+        let note = entry.current().and_then(|b| b.note().map(str::to_string));
         if let Some(note) = note {
             writeln!(out, "    note: {}", note.replace('\n', " / "))?;
         }
