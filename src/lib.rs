@@ -6,7 +6,10 @@
 //! - [`model`]: the facility (room, species profiles, systems, tanks), parsed
 //!   and validated from its TOML file, and the records of readings, events and
 //!   corrections;
+//! - [`rules`]: the assessment (band, latent risk, trend, biofilter, actions),
+//!   pure: inputs in, assessment out;
 //! - [`store`]: durable storage of records (journal + sled);
+//! - [`timeline`]: a tank's stored history, ready for the assessment;
 //!
 //! The command line (`src/cli.rs`, in the binary) is the only place that
 //! prints, and the only place that uses `anyhow`.
@@ -19,6 +22,7 @@ pub mod numfmt;
 pub mod paths;
 pub mod rules;
 pub mod store;
+pub mod timeline;
 
 /// The caution shown with every assessment.
 pub const CAUTION: &str = "Guidance only, not veterinary advice. Local rules and licensed practice govern \
