@@ -191,3 +191,20 @@ fn the_rooms_kit_basis_is_the_default() {
     // 25 °C, pH 8.0, TAN-N 1.0: 0.06525 mg NH3/L (reference row UNITS-013).
     assert!((v["nh3_mg_l"].as_f64().unwrap() - 0.06524760874489856).abs() < 1e-9);
 }
+
+#[test]
+fn a_skip_is_stored_with_its_reason() {
+    let data = tempfile::tempdir().unwrap();
+    let dir = data.path();
+    let harbourside = room("harbourside-holding.toml");
+    let v = json(dir, &["--room", &harbourside, "skip", "--tank", "Q-4", "--reason", "empty, being cycled", "--json"]);
+    assert_eq!(v["kind"], "skip");
+    assert_eq!(v["note"], "empty, being cycled");
+    let out = tw(dir, &["skip", "--tank", "Q-4", "--reason", "  "]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("--reason"), "{}", String::from_utf8_lossy(&out.stderr));
+    let log = json(dir, &["log", "--json"]);
+    assert_eq!(log.as_array().unwrap().len(), 1);
+    let text = String::from_utf8(tw(dir, &["log"]).stdout).unwrap();
+    assert!(text.contains("skipped: empty, being cycled"), "{text}");
+}
