@@ -4,6 +4,7 @@
 //! 2 the command line or an input value was wrong, and nothing was done.
 
 mod calc;
+mod keymap;
 
 use std::process::ExitCode;
 
@@ -30,6 +31,8 @@ pub(crate) use bad_input;
 struct Cli {
     #[command(flatten)]
     global: GlobalArgs,
+    #[command(flatten)]
+    keymap: keymap::KeymapOption,
     #[command(subcommand)]
     command: Option<Command>,
 }
@@ -63,6 +66,8 @@ enum Command {
     /// Compute toxic (un-ionized) ammonia and its band for one reading.
     #[command(allow_negative_numbers = true)]
     Calc(calc::CalcArgs),
+    /// Check a keymap file, or list the keys in use.
+    Keymap(keymap::KeymapArgs),
 }
 
 /// Parses the command line, runs it and maps the outcome to an exit code.
@@ -87,6 +92,7 @@ pub fn main() -> ExitCode {
 fn run(cli: Cli) -> anyhow::Result<ExitCode> {
     match cli.command {
         Some(Command::Calc(args)) => calc::run(&args),
+        Some(Command::Keymap(args)) => keymap::run(&cli.global, &cli.keymap, &args),
         None => {
             use clap::CommandFactory;
             Cli::command().print_help()?;

@@ -3,6 +3,7 @@
 //! The crate is layered so that dependencies point inward:
 //!
 //! - [`core`]: pure water chemistry (no I/O, no clock);
+//! - [`tui`]: the terminal screen (keymaps, pure state and update, views);
 //!
 //! The command line (`src/cli.rs`, in the binary) is the only place that
 //! prints, and the only place that uses `anyhow`.
@@ -12,6 +13,7 @@
 pub mod core;
 pub mod numfmt;
 pub mod paths;
+pub mod tui;
 
 /// The caution shown with every assessment.
 pub const CAUTION: &str = "Guidance only, not veterinary advice. Local rules and licensed practice govern \
