@@ -13,6 +13,7 @@
 pub mod core;
 pub mod numfmt;
 pub mod paths;
+pub mod rules;
 pub mod tui;
 
 /// The caution shown with every assessment.

@@ -1,0 +1,8 @@
+//! Assessment: from a reading and what is known of the tank to a band, the
+//! latent risk, a trend, the biofilter's state and an ordered list of actions,
+//! each with its quantity and its reason. Pure: inputs in, assessment out.
+
+pub mod latent;
+pub mod trend;
+pub mod water_change;
+pub mod what_if;
