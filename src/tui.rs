@@ -9,6 +9,7 @@
 pub mod action;
 pub mod help;
 pub mod keymap;
+pub mod state;
 pub mod terminal;
 
 pub use action::Action;
