@@ -3,6 +3,9 @@
 //! The crate is layered so that dependencies point inward:
 //!
 //! - [`core`]: pure water chemistry (no I/O, no clock);
+//! - [`model`]: the facility (room, species profiles, systems, tanks), parsed
+//!   and validated from its TOML file, and the records of readings, events and
+//!   corrections;
 //! - [`tui`]: the terminal screen (keymaps, pure state and update, views);
 //!
 //! The command line (`src/cli.rs`, in the binary) is the only place that
@@ -11,6 +14,7 @@
 //! Everything tankwalk advises is guidance: see [`CAUTION`].
 
 pub mod core;
+pub mod model;
 pub mod numfmt;
 pub mod paths;
 pub mod rules;

@@ -1,0 +1,21 @@
+//! The facility model (one room's species profiles, shared systems and tanks,
+//! read from a TOML facility file, `docs/facility-format.md`) and the records
+//! of what happens in it (readings, events, corrections).
+//!
+//! Parsing takes text and returns every problem it finds, each located by
+//! file, line and column; reading the file is the thin [`Facility::load`].
+//! Nothing here reads the clock: the caller passes today's date where a check
+//! needs it.
+
+pub mod facility;
+pub mod id;
+pub mod problem;
+pub mod record;
+pub mod species;
+
+pub use facility::{
+    DEFAULT_ROUND_INTERVAL_HOURS, Facility, Room, RoundOrder, SourceWater, System, Tank, TemperatureUnit, VolumeUnit,
+};
+pub use id::{Id, IdError};
+pub use problem::{FacilityErrors, LoadError, Problem, Severity};
+pub use species::{Bounds, EdgesOrigin, EffectiveProfile, SpeciesProfile, WaterType};
