@@ -34,6 +34,8 @@ pub enum FieldKind {
     WaterChangePercent,
     /// A count of fish.
     Count,
+    /// A mass of salt or a product, grams.
+    Grams,
 }
 
 impl FieldKind {
@@ -49,6 +51,7 @@ impl FieldKind {
             FieldKind::DissolvedOxygen => "Dissolved O2",
             FieldKind::WaterChangePercent => "Water change",
             FieldKind::Count => "Count",
+            FieldKind::Grams => "Amount",
         }
     }
 
@@ -64,6 +67,7 @@ impl FieldKind {
             FieldKind::Salinity => "g/L",
             FieldKind::DissolvedOxygen => "mg/L",
             FieldKind::WaterChangePercent => "%",
+            FieldKind::Grams => "g",
         }
     }
 
@@ -106,6 +110,13 @@ impl FieldKind {
                     Err(format!("{value} is more than one record may count"))
                 };
             }
+            FieldKind::Grams => {
+                return if (0.0..=1_000_000.0).contains(&value) {
+                    Ok(None)
+                } else {
+                    Err(format!("{value} g is more than one record may hold (1 000 000 g)"))
+                };
+            }
         };
         match limits::check(quantity, value) {
             Err(err) => Err(err.to_string()),
@@ -124,6 +135,7 @@ impl FieldKind {
             FieldKind::DissolvedOxygen => 0.5,
             FieldKind::WaterChangePercent => 5.0,
             FieldKind::Count => 1.0,
+            FieldKind::Grams => 10.0,
         }
     }
 }
