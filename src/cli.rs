@@ -4,7 +4,9 @@
 //! 2 the command line or an input value was wrong, and nothing was done.
 
 mod calc;
+mod check_room;
 mod keymap;
+mod room;
 
 use std::process::ExitCode;
 
@@ -50,7 +52,6 @@ pub struct GlobalArgs {
 
 impl GlobalArgs {
     /// The data folder: `--data-dir`, `TANKWALK_DATA`, or the platform's per-user data folder.
-    #[allow(dead_code)] // the store commands use it
     pub fn data_dir(&self) -> anyhow::Result<std::path::PathBuf> {
         match &self.data_dir {
             Some(dir) => Ok(dir.clone()),
@@ -66,6 +67,8 @@ enum Command {
     /// Compute toxic (un-ionized) ammonia and its band for one reading.
     #[command(allow_negative_numbers = true)]
     Calc(calc::CalcArgs),
+    /// Check a facility file: list every error with its line, or summarise the room.
+    CheckRoom(check_room::CheckRoomArgs),
     /// Check a keymap file, or list the keys in use.
     Keymap(keymap::KeymapArgs),
 }
@@ -91,7 +94,8 @@ pub fn main() -> ExitCode {
 
 fn run(cli: Cli) -> anyhow::Result<ExitCode> {
     match cli.command {
-        Some(Command::Calc(args)) => calc::run(&args),
+        Some(Command::Calc(args)) => calc::run(&args, &cli.global),
+        Some(Command::CheckRoom(args)) => check_room::run(&args),
         Some(Command::Keymap(args)) => keymap::run(&cli.global, &cli.keymap, &args),
         None => {
             use clap::CommandFactory;

@@ -9,13 +9,18 @@
 
 pub mod facility;
 pub mod id;
+mod load;
 pub mod problem;
+mod raw;
 pub mod record;
 pub mod species;
+mod validate;
+mod write;
 
 pub use facility::{
     DEFAULT_ROUND_INTERVAL_HOURS, Facility, Room, RoundOrder, SourceWater, System, Tank, TemperatureUnit, VolumeUnit,
 };
 pub use id::{Id, IdError};
+pub use load::Checked;
 pub use problem::{FacilityErrors, LoadError, Problem, Severity};
 pub use species::{Bounds, EdgesOrigin, EffectiveProfile, SpeciesProfile, WaterType};

@@ -14,7 +14,10 @@ use tankwalk::core::sample::{self, WaterSample};
 use tankwalk::core::units::{self, AmmoniaBasis};
 use tankwalk::numfmt::sig;
 
-use super::bad_input;
+use tankwalk::model::{EffectiveProfile, VolumeUnit, WaterType};
+
+use super::room::resolve_room;
+use super::{GlobalArgs, bad_input};
 
 #[derive(Debug, Args)]
 #[command(group(clap::ArgGroup::new("temperature").required(true).args(["temp_c", "temp_f"])))]
@@ -32,9 +35,10 @@ pub struct CalcArgs {
     /// Total ammonia in mg/L (ppm), on the basis given by --tan-as.
     #[arg(long, value_name = "MG_L")]
     tan: f64,
-    /// How the kit reports total ammonia: n (as nitrogen, TAN-N), nh3 or nh4.
-    #[arg(long, value_name = "BASIS", default_value = "n")]
-    tan_as: AmmoniaBasis,
+    /// How the kit reports total ammonia: n (as nitrogen, TAN-N), nh3 or nh4 [default: n, or the
+    /// room's kit_basis with --tank].
+    #[arg(long, value_name = "BASIS")]
+    tan_as: Option<AmmoniaBasis>,
     /// Salinity in g/L (ppt), 0–45; fresh water when no salinity is given.
     #[arg(long, value_name = "PPT")]
     salinity_ppt: Option<f64>,
@@ -53,9 +57,13 @@ pub struct CalcArgs {
     /// Dissolved oxygen in mg/L, to show percent saturation.
     #[arg(long, value_name = "MG_L")]
     do_mg_l: Option<f64>,
-    /// Elevation of the room in metres, for oxygen saturation.
-    #[arg(long, value_name = "M", default_value_t = 0.0)]
-    elevation_m: f64,
+    /// Elevation of the room in metres, for oxygen saturation [default: 0, or the room's with --tank].
+    #[arg(long, value_name = "M")]
+    elevation_m: Option<f64>,
+    /// The tank (label on the glass) the reading is from: uses its species' band edges, its
+    /// salinity unless one is given, and the room's kit basis and elevation (needs a room).
+    #[arg(long, value_name = "ID")]
+    tank: Option<String>,
     /// Print one JSON object instead of a table.
     #[arg(long)]
     json: bool,
@@ -81,12 +89,22 @@ fn describe(option: &str, unusual: &Unusual) -> String {
 struct Parsed {
     sample: WaterSample,
     tan_as_given: f64,
-    salinity_source: &'static str,
+    tan_as: AmmoniaBasis,
+    salinity_source: String,
     elevation_m: f64,
     warnings: Vec<String>,
 }
 
-fn parse(args: &CalcArgs) -> Result<Parsed> {
+/// What the tank and its room say when an option is not given.
+#[derive(Default)]
+struct Defaults {
+    tan_as: Option<AmmoniaBasis>,
+    elevation_m: Option<f64>,
+    /// The tank's salinity, g/L, and where it comes from.
+    salinity: Option<(f64, String)>,
+}
+
+fn parse(args: &CalcArgs, defaults: &Defaults) -> Result<Parsed> {
     let mut warnings = Vec::new();
     let temp_c = match (args.temp_c, args.temp_f) {
         (Some(c), _) => checked("--temp-c", Quantity::TemperatureC, c, &mut warnings)?,
@@ -106,17 +124,25 @@ fn parse(args: &CalcArgs) -> Result<Parsed> {
     let tan_as_given = checked("--tan", Quantity::TotalAmmonia, args.tan, &mut warnings)?;
     let (reading, salinity_source) = if let Some(s) = args.salinity_ppt {
         let s = checked("--salinity-ppt", Quantity::Salinity, s, &mut warnings)?;
-        (Some(SalinityReading::Ppt { value: s }), "as given")
+        (Some(SalinityReading::Ppt { value: s }), "as given".to_string())
     } else if let Some(sg) = args.sg {
         let sg = checked("--sg", Quantity::SpecificGravity, sg, &mut warnings)?;
         let reference_c = checked("--sg-ref-c", Quantity::ReferenceTemperatureC, args.sg_ref_c, &mut warnings)?;
-        (Some(SalinityReading::SpecificGravity { value: sg, reference_c }), "from specific gravity (EOS-80)")
+        (
+            Some(SalinityReading::SpecificGravity { value: sg, reference_c }),
+            "from specific gravity (EOS-80)".to_string(),
+        )
     } else if let Some(cond) = args.cond_us_cm {
         let cond = checked("--cond-us-cm", Quantity::Conductivity, cond, &mut warnings)?;
         let reference_c = checked("--cond-ref-c", Quantity::ReferenceTemperatureC, args.cond_ref_c, &mut warnings)?;
-        (Some(SalinityReading::Conductivity { value_us_cm: cond, reference_c }), "from conductivity (PSS-78)")
+        (
+            Some(SalinityReading::Conductivity { value_us_cm: cond, reference_c }),
+            "from conductivity (PSS-78)".to_string(),
+        )
+    } else if let Some((s, source)) = &defaults.salinity {
+        (Some(SalinityReading::Ppt { value: *s }), source.clone())
     } else {
-        (None, "none given: fresh water")
+        (None, "none given: fresh water".to_string())
     };
     let salinity_ppt = reading.map_or(0.0, |r| r.practical_salinity());
     if reading.is_some() && !matches!(reading, Some(SalinityReading::Ppt { .. })) {
@@ -126,10 +152,15 @@ fn parse(args: &CalcArgs) -> Result<Parsed> {
         Some(d) => Some(checked("--do-mg-l", Quantity::DissolvedOxygen, d, &mut warnings)?),
         None => None,
     };
-    let elevation_m = checked("--elevation-m", Quantity::Elevation, args.elevation_m, &mut warnings)?;
+    let elevation_m = match args.elevation_m {
+        Some(e) => checked("--elevation-m", Quantity::Elevation, e, &mut warnings)?,
+        None => defaults.elevation_m.unwrap_or(0.0),
+    };
+    let tan_as = args.tan_as.or(defaults.tan_as).unwrap_or_default();
     Ok(Parsed {
-        sample: WaterSample { temp_c, ph, tan_n_mg_l: args.tan_as.to_tan_n(tan_as_given), salinity_ppt, do_mg_l },
+        sample: WaterSample { temp_c, ph, tan_n_mg_l: tan_as.to_tan_n(tan_as_given), salinity_ppt, do_mg_l },
         tan_as_given,
+        tan_as,
         salinity_source,
         elevation_m,
         warnings,
@@ -152,7 +183,7 @@ struct CalcOutput {
     nh3_n_mg_l: f64,
     band: Band,
     band_edges_nh3_n_mg_l: BandEdges,
-    band_edges_source: &'static str,
+    band_edges_source: String,
     epa2013_acute_tan_n_mg_l: Option<f64>,
     epa2013_chronic_tan_n_mg_l: Option<f64>,
     do_saturation_mg_l: f64,
@@ -161,20 +192,127 @@ struct CalcOutput {
     #[serde(skip_serializing_if = "Option::is_none")]
     do_percent: Option<f64>,
     elevation_m: f64,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    tank: Option<TankOutput>,
     warnings: Vec<String>,
     caution: &'static str,
 }
 
-pub fn run(args: &CalcArgs) -> Result<ExitCode> {
-    let parsed = parse(args)?;
-    let edges = BandEdges::DEFAULT;
+/// The tank a reading came from, as the facility file describes it.
+#[derive(Debug, Serialize)]
+struct TankOutput {
+    id: String,
+    room: String,
+    room_file: std::path::PathBuf,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    system: Option<String>,
+    species: Vec<String>,
+    species_names: Vec<String>,
+    water_type: WaterType,
+    salinity_g_l: f64,
+    tank_volume_l: f64,
+    water_volume_l: f64,
+    volume_unit: &'static str,
+    stock_count: u32,
+}
+
+/// The tank named by `--tank` in the room, with what it sets by default.
+struct TankContext {
+    output: TankOutput,
+    defaults: Defaults,
+    profile: EffectiveProfile,
+}
+
+fn tank_context(label: &str, global: &GlobalArgs) -> Result<TankContext> {
+    let (path, facility) = resolve_room(global)?;
+    let Some(tank) = facility.tank(label) else {
+        let labels: Vec<&str> = facility.tanks.iter().map(|t| t.id.as_str()).collect();
+        let mut hint = String::new();
+        if let Some(near) =
+            labels.iter().min_by_key(|l| strsim::damerau_levenshtein(&l.to_lowercase(), &label.to_lowercase()))
+        {
+            hint = format!(" (closest: {near})");
+        }
+        return Err(bad_input!("--tank: no tank '{label}' in room {}{hint}", path.display()));
+    };
+    let system = facility.system_of(tank);
+    let salinity_g_l = facility.salinity_g_l(tank);
+    let salinity_from = match system {
+        Some(s) => format!("system {} in the facility file", s.id),
+        None => format!("tank {} in the facility file", tank.id),
+    };
+    let species = facility.species_of(tank);
+    Ok(TankContext {
+        defaults: Defaults {
+            tan_as: Some(facility.room.kit_basis),
+            elevation_m: Some(facility.room.elevation_m),
+            salinity: Some((salinity_g_l, salinity_from)),
+        },
+        profile: facility.effective_profile(tank),
+        output: TankOutput {
+            id: tank.id.to_string(),
+            room: facility.room.name.clone(),
+            room_file: path.clone(),
+            system: system.map(|s| s.id.to_string()),
+            species: species.iter().map(|p| p.key.to_string()).collect(),
+            species_names: species.iter().map(|p| p.name.clone()).collect(),
+            water_type: facility.water_type(tank),
+            salinity_g_l,
+            tank_volume_l: tank.volume_l,
+            water_volume_l: facility.water_volume_l(tank),
+            volume_unit: facility.room.volume_unit.symbol(),
+            stock_count: tank.stock_count,
+        },
+    })
+}
+
+/// Warnings when the water is outside what the tank's species are kept at.
+fn range_warnings(profile: &EffectiveProfile, sample: &WaterSample, warnings: &mut Vec<String>) {
+    let whose = profile.species.iter().map(|k| k.as_str()).collect::<Vec<_>>().join(", ");
+    if let Some(t) = profile.temp_c
+        && !t.contains(sample.temp_c)
+    {
+        warnings.push(format!(
+            "temperature {} °C is outside the {}–{} °C kept for {whose}",
+            sig(sample.temp_c, 3),
+            t.min,
+            t.max
+        ));
+    }
+    if let Some(p) = profile.ph
+        && !p.contains(sample.ph)
+    {
+        warnings.push(format!("pH {} is outside the {}–{} kept for {whose}", sample.ph, p.min, p.max));
+    }
+    if let Some(s) = profile.salt_tolerance_g_l
+        && sample.salinity_ppt > s + 1e-9
+    {
+        warnings.push(format!(
+            "salinity {} g/L is above the {} g/L that {whose} tolerates",
+            sig(sample.salinity_ppt, 3),
+            s
+        ));
+    }
+}
+
+pub fn run(args: &CalcArgs, global: &GlobalArgs) -> Result<ExitCode> {
+    let tank = args.tank.as_deref().map(|label| tank_context(label, global)).transpose()?;
+    let no_defaults = Defaults::default();
+    let mut parsed = parse(args, tank.as_ref().map_or(&no_defaults, |t| &t.defaults))?;
+    let (edges, edges_source) = match &tank {
+        Some(t) => {
+            range_warnings(&t.profile, &parsed.sample, &mut parsed.warnings);
+            (t.profile.band_edges, t.profile.edges_origin.to_string())
+        }
+        None => (BandEdges::DEFAULT, "tankwalk defaults".to_string()),
+    };
     let derived = sample::derive(&parsed.sample, &edges, parsed.elevation_m);
     let out = CalcOutput {
         temp_c: parsed.sample.temp_c,
         ph: parsed.sample.ph,
         ph_scale: "NBS",
         tan_as_given: parsed.tan_as_given,
-        tan_as: args.tan_as.name(),
+        tan_as: parsed.tan_as.name(),
         tan_n_mg_l: parsed.sample.tan_n_mg_l,
         salinity_ppt: parsed.sample.salinity_ppt,
         pka: derived.toxic.pka,
@@ -188,13 +326,14 @@ pub fn run(args: &CalcArgs) -> Result<ExitCode> {
         nh3_n_mg_l: derived.toxic.nh3_n_mg_l,
         band: derived.band,
         band_edges_nh3_n_mg_l: edges,
-        band_edges_source: "tankwalk defaults",
+        band_edges_source: edges_source,
         epa2013_acute_tan_n_mg_l: derived.epa_acute_tan_n_mg_l,
         epa2013_chronic_tan_n_mg_l: derived.epa_chronic_tan_n_mg_l,
         do_saturation_mg_l: derived.do_saturation_mg_l,
         do_mg_l: parsed.sample.do_mg_l,
         do_percent: derived.do_percent,
         elevation_m: parsed.elevation_m,
+        tank: tank.map(|t| t.output),
         warnings: parsed.warnings.clone(),
         caution: tankwalk::CAUTION,
     };
@@ -211,6 +350,25 @@ pub fn run(args: &CalcArgs) -> Result<ExitCode> {
 fn write_table(w: &mut impl Write, out: &CalcOutput, parsed: &Parsed) -> std::io::Result<()> {
     let row = |w: &mut dyn Write, label: &str, value: String| writeln!(w, "  {label:<18} {value}");
     writeln!(w, "Toxic ammonia")?;
+    if let Some(t) = &out.tank {
+        let unit = if t.volume_unit == "L" { VolumeUnit::Litre } else { VolumeUnit::UsGallon };
+        let shown = |l: f64| format!("{} {}", sig(unit.from_litres(l), 3), unit.symbol());
+        let species =
+            if t.species_names.is_empty() { "none (empty tank)".to_string() } else { t.species_names.join(", ") };
+        row(w, "tank", format!("{}, {} animals  ({})", t.id, t.stock_count, t.room))?;
+        row(w, "species", species)?;
+        let water = match &t.system {
+            Some(system) => {
+                format!(
+                    "{} shared on system {system} (the tank itself {})",
+                    shown(t.water_volume_l),
+                    shown(t.tank_volume_l)
+                )
+            }
+            None => format!("{}, standalone", shown(t.water_volume_l)),
+        };
+        row(w, "water", format!("{water}; {} water", t.water_type))?;
+    }
     row(w, "temperature", format!("{} °C", sig(out.temp_c, 3)))?;
     row(w, "pH", format!("{:.2}  ({})", out.ph, tankwalk::PH_CONVENTION))?;
     row(w, "salinity", format!("{} g/L  ({})", sig(out.salinity_ppt, 3), parsed.salinity_source))?;
@@ -234,7 +392,7 @@ fn write_table(w: &mut impl Write, out: &CalcOutput, parsed: &Parsed) -> std::io
             e.watch,
             e.act,
             e.critical,
-            out.band_edges_source
+            &out.band_edges_source
         ),
     )?;
     match (out.epa2013_acute_tan_n_mg_l, out.epa2013_chronic_tan_n_mg_l) {

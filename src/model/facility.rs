@@ -91,6 +91,14 @@ impl TemperatureUnit {
             TemperatureUnit::Fahrenheit => "°F",
         }
     }
+
+    /// Converts °C to this unit.
+    pub fn from_celsius(self, celsius: f64) -> f64 {
+        match self {
+            TemperatureUnit::Celsius => celsius,
+            TemperatureUnit::Fahrenheit => crate::core::units::celsius_to_fahrenheit(celsius),
+        }
+    }
 }
 
 /// A volume unit for display (the model keeps litres).

@@ -5,8 +5,9 @@ use crate::core::band::Band;
 
 use super::super::action::Action;
 use super::round::{self, Due};
-use super::verdict::{self, Suggestion, VerdictInput};
+use super::verdict;
 use super::{App, Effect, Screen, walk};
+use crate::rules::action::{Action as Suggestion, Warning};
 
 /// The summary screen's state.
 #[derive(Debug, Clone, Default, PartialEq, Eq)]
@@ -26,6 +27,8 @@ pub struct Attention {
     pub nh3_n_mg_l: f64,
     /// What to do.
     pub actions: Vec<Suggestion>,
+    /// What not to do.
+    pub warnings: Vec<Warning>,
 }
 
 /// The round in figures.
@@ -73,24 +76,23 @@ pub fn summarize(app: &App) -> Summary {
         let status = &app.statuses[t];
         if status.band.is_some_and(|b| b >= Band::Act) {
             let tank = app.tank(t);
-            if let Some((_, sample)) = round::latest_water(&app.facility, &app.history, tank) {
-                let input = VerdictInput {
-                    sample,
-                    observations: round::observations_this_round(&app.history, tank, app.round_start),
-                    edges: app.facility.effective_profile(tank).band_edges,
-                    source: app.source_water(),
-                    latent_ph: app.latent_ph(tank),
-                    volume: app.water_volume(tank),
-                    elevation_m: app.facility.room.elevation_m,
-                    nh3_history: Vec::new(),
-                };
-                let v = verdict::assess(&input, super::utc(app.now));
-                summary.attention.push(Attention {
-                    tank: t,
-                    band: v.band,
-                    nh3_n_mg_l: v.derived.toxic.nh3_n_mg_l,
-                    actions: v.actions,
-                });
+            if let Some((entry, _)) = round::latest_water(&app.facility, &app.history, tank) {
+                // The water's reading with what was seen of this tank's fish this round.
+                let mut reading = entry
+                    .reading()
+                    .cloned()
+                    .unwrap_or_else(|| crate::model::record::Reading::new(round::tank_target(tank)));
+                reading.observations = round::observations_this_round(&app.history, tank, app.round_start);
+                let a = verdict::assess_reading(app, t, &reading, entry.taken_at, entry.taken_at);
+                if let (Some(band), Some(figures)) = (a.band, a.figures) {
+                    summary.attention.push(Attention {
+                        tank: t,
+                        band,
+                        nh3_n_mg_l: figures.nh3_n_mg_l,
+                        actions: a.actions,
+                        warnings: a.warnings,
+                    });
+                }
             }
         }
     }

@@ -17,13 +17,14 @@ use crate::model::record::{
     Correction, Measurements, NitrogenReading, Observations, Reading, Record, RecordBody, Sign, Target, Temperature,
     TotalAmmonia,
 };
+use crate::rules::assess::Assessment;
 use crate::rules::trend::{Trend, TrendWindow, trend};
 
 use super::super::action::Action;
 use super::field::{FieldKind, NumberField, Provenance, format_value};
 use super::modal::{Confirm, ConfirmFor, Modal, PickFor, PromptFor, prefilled};
 use super::round::{self, Due};
-use super::verdict::{self, STEADY_NH3_N_PER_DAY, Verdict, VerdictInput};
+use super::verdict;
 use super::whatif::{WhatIfBase, WhatIfState};
 use super::{App, Effect, SaveFor, Screen, StatusKind, summary, tank_page, utc};
 use crate::core::salinity::SalinityReading;
@@ -65,6 +66,9 @@ pub fn walk_fields(facility: &Facility, tank: &Tank) -> Vec<FieldKind> {
     }
     fields
 }
+
+/// A change in NH3-N slower than this, mg/L a day, reads as steady (common practice, no source).
+const STEADY_NH3_N_PER_DAY: f64 = 0.002;
 
 /// How many fields every routine reading fills (the rest are optional).
 pub const ROUTINE_FIELDS: usize = 4;
@@ -152,9 +156,8 @@ pub struct TankEntry {
     pub own: Option<(Ulid, DateTime<FixedOffset>)>,
     /// NH3 over earlier readings, before anything is typed.
     pub history_trend: Option<Trend>,
-    /// The verdict on what the fields hold now (needs temperature, pH and total ammonia).
-    pub verdict: Option<Verdict>,
-    nh3_history: Vec<(chrono::DateTime<chrono::Utc>, f64)>,
+    /// The assessment of what the fields hold now.
+    pub verdict: Assessment,
     initial: Snapshot,
 }
 
@@ -173,6 +176,19 @@ impl TankEntry {
 
     fn was_carried(&self, i: usize) -> bool {
         matches!(self.initial.texts[i].1, Provenance::Carried(_))
+    }
+
+    /// Everything the entry holds, as one reading of the tank.
+    pub fn reading(&self, app: &App) -> Reading {
+        let mut reading = Reading::new(round::tank_target(app.tank(self.tank)));
+        for field in &self.fields {
+            if let Some(v) = field.value() {
+                put(&mut reading.measurements, field.kind, v);
+            }
+        }
+        reading.observations = self.observations;
+        reading.note = self.note.clone();
+        reading
     }
 
     /// The water the fields describe, when temperature, pH and total ammonia are there.
@@ -288,32 +304,28 @@ pub fn load_entry(app: &App, tank_index: usize) -> TankEntry {
         carried,
         own: own.map(|e| (e.head, e.taken_at)),
         history_trend,
-        verdict: None,
-        nh3_history,
+        verdict: verdict::assess_reading(
+            app,
+            tank_index,
+            &Reading::new(round::tank_target(tank)),
+            app.now,
+            app.round_start,
+        ),
         initial,
     };
     entry.verdict = compute_verdict(app, &entry);
     entry
 }
 
-fn compute_verdict(app: &App, entry: &TankEntry) -> Option<Verdict> {
-    let tank = app.tank(entry.tank);
-    let sample = entry.sample(app.facility.salinity_g_l(tank))?;
-    let input = VerdictInput {
-        sample,
-        observations: entry.observations,
-        edges: app.facility.effective_profile(tank).band_edges,
-        source: app.source_water(),
-        latent_ph: app.latent_ph(tank),
-        volume: app.water_volume(tank),
-        elevation_m: app.facility.room.elevation_m,
-        nh3_history: entry.nh3_history.clone(),
-    };
-    Some(verdict::assess(&input, utc(app.now)))
+fn compute_verdict(app: &App, entry: &TankEntry) -> Assessment {
+    let reading = entry.reading(app);
+    // A tank already done this round is judged as of its reading, against what came before this round.
+    let at = entry.own.map_or(app.now, |(_, at)| at);
+    verdict::assess_reading(app, entry.tank, &reading, at, app.round_start)
 }
 
 fn refresh_verdict(app: &mut App) {
-    let verdict = app.walk.as_ref().and_then(|w| compute_verdict(app, &w.entry));
+    let Some(verdict) = app.walk.as_ref().map(|w| compute_verdict(app, &w.entry)) else { return };
     if let Some(walk) = &mut app.walk {
         walk.entry.verdict = verdict;
     }
