@@ -14,6 +14,7 @@
 //! Everything tankwalk advises is guidance: see [`CAUTION`].
 
 pub mod core;
+pub mod demo;
 pub mod model;
 pub mod numfmt;
 pub mod paths;
