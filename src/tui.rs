@@ -6,11 +6,13 @@
 //! - [`help`]: help rows built from the live keymap (overlay, footer, `keymap show`);
 //! - [`state`]: the pure state and update of every screen;
 //! - [`view`]: drawing, which only reads the state;
-//! - [`terminal`]: entering and leaving the terminal safely.
+//! - [`terminal`]: entering and leaving the terminal safely;
+//! - [`run`]: the loop, the only code that touches the terminal and the store.
 
 pub mod action;
 pub mod help;
 pub mod keymap;
+pub mod run;
 pub mod state;
 pub mod terminal;
 pub mod view;

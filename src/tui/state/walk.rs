@@ -6,6 +6,8 @@
 //! carried over, so only the fish need looking at. A tank already done shows
 //! what was saved; changing it saves a correction, never an overwrite.
 
+use std::collections::BTreeSet;
+
 use chrono::{DateTime, FixedOffset};
 use ulid::Ulid;
 
@@ -212,6 +214,9 @@ pub struct WalkState {
     pub entry: TankEntry,
     /// Answers collected for a save that needs them (system or own, correction reason).
     pub save_draft: Option<SaveDraft>,
+    /// Tanks shown in this walk: a tank done only by its system's reading is
+    /// still visited once (its fish need looking at), then passed over.
+    pub visited: BTreeSet<usize>,
 }
 
 /// Answers a save needed from the person.
@@ -354,23 +359,43 @@ pub fn start(app: &mut App, at: Option<usize>) {
     }
     let resume = app.walk.as_ref().is_some_and(|w| w.pos == pos);
     if !resume {
-        let entry = load_entry(app, app.round_order[pos]);
-        app.walk = Some(WalkState { pos, entry, save_draft: None });
+        go_to(app, pos);
     }
     app.screens.retain(|s| matches!(s, Screen::Board));
     app.screens.push(Screen::Walk);
 }
 
 fn go_to(app: &mut App, pos: usize) {
-    let entry = load_entry(app, app.round_order[pos]);
-    app.walk = Some(WalkState { pos, entry, save_draft: None });
+    let tank = app.round_order[pos];
+    let entry = load_entry(app, tank);
+    let mut visited = app.walk.take().map(|w| w.visited).unwrap_or_default();
+    visited.insert(tank);
+    app.walk = Some(WalkState { pos, entry, save_draft: None, visited });
+}
+
+/// The next tank the walk stops at after position `from`: one the round
+/// still wants, or one done only by its system's reading and not yet shown;
+/// then, from the start, any the round still wants.
+pub fn next_stop(app: &App, from: usize) -> Option<usize> {
+    let visited = app.walk.as_ref().map(|w| &w.visited);
+    let carried_unseen = |t: usize| {
+        app.statuses[t].due == Due::Done
+            && round::own_this_round(&app.history, app.tank(t), app.round_start).is_none()
+            && !visited.is_some_and(|v| v.contains(&t))
+    };
+    (from..app.round_order.len())
+        .find(|&pos| {
+            let t = app.round_order[pos];
+            app.statuses[t].due.wanted() || carried_unseen(t)
+        })
+        .or_else(|| app.next_wanted(0))
 }
 
 /// Moves on after a tank is saved or skipped: the next tank the round wants,
 /// or the summary when none is left.
 fn advance(app: &mut App) {
     let Some(pos) = app.walk.as_ref().map(|w| w.pos) else { return };
-    match app.next_wanted(pos + 1) {
+    match next_stop(app, pos + 1) {
         Some(next) => go_to(app, next),
         None => {
             // Stay on the last tank, and show the round's end.
