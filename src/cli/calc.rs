@@ -39,7 +39,7 @@ pub struct CalcArgs {
     /// room's kit_basis with --tank].
     #[arg(long, value_name = "BASIS")]
     tan_as: Option<AmmoniaBasis>,
-    /// Salinity in g/L (ppt), 0–45; fresh water when no salinity is given.
+    /// Salinity in g/L (ppt), 0–45; without it, the tank's salinity with --tank, else fresh water.
     #[arg(long, value_name = "PPT")]
     salinity_ppt: Option<f64>,
     /// Specific gravity from a hydrometer or refractometer.

@@ -252,7 +252,10 @@ impl Facility {
             RoundOrder::AsListed => return self.tanks.iter().collect(),
             RoundOrder::Ids(ids) => ids,
         };
-        let index_of = |tank: &Tank| self.tanks.iter().position(|t| t.id == tank.id);
+        // Positions by exact id, so a room of thousands of tanks is ordered in linear time.
+        let position: std::collections::HashMap<&str, usize> =
+            self.tanks.iter().enumerate().map(|(i, t)| (t.id.as_str(), i)).collect();
+        let index_of = |tank: &Tank| position.get(tank.id.as_str()).copied();
         let mut taken = vec![false; self.tanks.len()];
         let mut order: Vec<usize> = Vec::with_capacity(self.tanks.len());
         let mut take = |i: usize| {
@@ -262,10 +265,17 @@ impl Facility {
             }
         };
         for id in ids {
-            if let Some(tank) = self.tank(id.as_str()) {
-                index_of(tank).into_iter().for_each(&mut take);
+            // A loaded facility names tanks and systems exactly as written; the lookups
+            // that ignore case only serve facilities built by hand.
+            if let Some(&i) = position.get(id.as_str()) {
+                take(i);
             } else if let Some(system) = self.system(id.as_str()) {
-                self.tanks_on(system).into_iter().filter_map(index_of).for_each(&mut take);
+                let on = system.tanks.iter().filter_map(|t| {
+                    position.get(t.as_str()).copied().or_else(|| self.tank(t.as_str()).and_then(index_of))
+                });
+                on.for_each(&mut take);
+            } else if let Some(tank) = self.tank(id.as_str()) {
+                index_of(tank).into_iter().for_each(&mut take);
             }
         }
         (0..self.tanks.len()).for_each(&mut take);

@@ -42,6 +42,17 @@ impl Facility {
         warnings.sort_by_key(|p| (p.line, p.column));
         match facility {
             Some(facility) if errors.is_empty() => Ok(Checked { facility, warnings }),
+            _ if errors.is_empty() => {
+                // Validation refuses a facility only with an error; this is a safety net, not a path.
+                let p = Locator::new(text, origin).problem(
+                    0,
+                    "",
+                    "the file could not be read as a facility, and no specific problem was found; please report this"
+                        .to_string(),
+                    Severity::Error,
+                );
+                Err(FacilityErrors { errors: vec![p] })
+            }
             _ => Err(FacilityErrors { errors }),
         }
     }
@@ -132,7 +143,16 @@ fn read_entries(text: &str, ctx: &mut Context) -> Option<RawFile> {
             let line = ctx.line_of(&span);
             if !seen_lines.contains(&line) {
                 seen_lines.push(line);
-                ctx.error(&span, "", format!("not valid TOML: {}", e.message()));
+                let mut message = format!("not valid TOML: {}", e.message());
+                if e.message().starts_with("duplicate key") {
+                    // The parser names no key; the text at the error is the key.
+                    let key = text.get(span.clone()).unwrap_or("").trim();
+                    if !key.is_empty() && key.len() <= 40 {
+                        message = format!("not valid TOML: duplicate key '{key}'");
+                    }
+                    message.push_str(" (a key may appear once in each table)");
+                }
+                ctx.error(&span, "", message);
             }
         }
         return None;
@@ -191,9 +211,18 @@ fn read_list<T: DeserializeOwned>(
     unreadable: &mut Vec<String>,
     out: &mut Vec<Entry<T>>,
 ) {
-    let DeValue::Array(items) = value.get_ref() else {
-        ctx.error(key_span, list, format!("'{list}' must be a list of tables: write each entry as [[{list}]]"));
-        return;
+    let single;
+    let items: &[Spanned<DeValue>] = match value.get_ref() {
+        DeValue::Array(items) => items,
+        other => {
+            ctx.error(key_span, list, format!("'{list}' must be a list of tables: write each entry as [[{list}]]"));
+            if !other.is_table() {
+                return;
+            }
+            // Read the one table anyway, so that what names it is not reported as unknown too.
+            single = [value.clone()];
+            &single
+        }
     };
     for (index, item) in items.iter().enumerate() {
         let path = format!("{list}[{index}]");
@@ -352,7 +381,7 @@ pub(super) fn closest<'c>(word: &str, candidates: &[&'c str]) -> Option<&'c str>
     candidates
         .iter()
         .map(|c| (strsim::damerau_levenshtein(&word, &c.to_ascii_lowercase()), *c))
-        .filter(|(distance, c)| *distance <= (c.len() / 3).max(1))
+        .filter(|(distance, c)| *distance <= c.len().div_ceil(3))
         .min_by_key(|(distance, _)| *distance)
         .map(|(_, c)| c)
 }

@@ -59,11 +59,19 @@ pub(super) fn build(raw: RawFile, today: Option<NaiveDate>, ctx: &mut Context) -
     let failed: Vec<String> =
         failed_species.chain(failed_systems).chain(failed_tanks).map(|id| id.get_ref().to_ascii_lowercase()).collect();
     v.unreadable.extend(failed);
+    // Tanks of a system with errors of its own: their water is unknown, so it is not checked.
+    let orphans: Vec<String> = raw
+        .systems
+        .iter()
+        .zip(&systems)
+        .filter(|(_, b)| b.is_none())
+        .flat_map(|(e, _)| e.raw.tanks.iter().map(|t| t.get_ref().to_ascii_lowercase()))
+        .collect();
     if raw.tank_entries == 0 {
         v.ctx.error(&(raw.end..raw.end), "tanks", "the file has no [[tanks]]: add one entry for each tank or tub");
     }
     let (systems, mut tanks) = v.membership(&raw.systems, systems, &raw.tanks, tanks);
-    v.water_and_species(&raw.tanks, &mut tanks, &systems, &raw.species, &species);
+    v.water_and_species(&raw.tanks, &mut tanks, &systems, &raw.species, &species, &orphans);
     v.system_volumes(&raw.systems, &systems, &tanks);
     let order = raw.room.as_ref().and_then(|e| e.raw.round_order.as_ref());
     let round_order = v.round_order(order, &systems, &tanks);
@@ -237,7 +245,7 @@ impl Validator<'_, '_> {
         let field = format!("{path}.{}", if is_litres { "volume_l" } else { "volume_gal" });
         let v = *value.get_ref();
         if !(v.is_finite() && v > 0.0) {
-            self.ctx.error(&value.span(), &field, format!("{subject}: volume must be more than 0, not {v}"));
+            self.ctx.error(&value.span(), &field, format!("{subject}: volume must be a number above 0, not {v}"));
             return None;
         }
         let l = if is_litres { v } else { units::us_gallons_to_litres(v) };
@@ -829,11 +837,9 @@ impl Validator<'_, '_> {
         let mut listed_on: HashMap<usize, (usize, Range<usize>)> = HashMap::new();
         for (si, system) in systems.iter().enumerate() {
             let Some(system) = system else { continue };
-            let sys_index =
-                raw_systems.iter().position(|e| e.raw.id.get_ref() == system.system.id.as_str()).unwrap_or(si);
             for (li, (id, span)) in system.listed.iter().enumerate() {
                 let Some(id) = id else { continue };
-                let field = format!("systems[{}].tanks[{li}]", raw_systems[sys_index].index);
+                let field = format!("systems[{}].tanks[{li}]", system.index);
                 let subject = format!("system '{}'", system.system.id);
                 let Some(&ti) = tank_at.get(&id.as_str().to_ascii_lowercase()) else {
                     if !self.is_unreadable(id.as_str()) {
@@ -960,11 +966,14 @@ impl Validator<'_, '_> {
         systems: &[Option<BuiltSystem>],
         raw_species: &[Entry<RawSpecies>],
         species: &[Option<BuiltSpecies>],
+        orphans: &[String],
     ) {
         let keys: Vec<&str> = raw_species.iter().map(|s| s.raw.key.get_ref().as_str()).collect();
         let profiles: Vec<&SpeciesProfile> = species.iter().flatten().map(|s| &s.profile).collect();
         for (entry, tank) in raw_tanks.iter().zip(tanks.iter_mut()) {
             let Some(t) = tank else { continue };
+            let on_broken_system = t.tank.system.is_none()
+                && (t.declared_system.is_some() || orphans.contains(&t.tank.id.as_str().to_ascii_lowercase()));
             let path = format!("tanks[{}]", entry.index);
             let subject = format!("tank '{}'", t.tank.id);
             let mut found: Vec<(&SpeciesProfile, &Range<usize>, &str)> = Vec::new();
@@ -1019,6 +1028,7 @@ impl Validator<'_, '_> {
                     }
                     (sys.water_type, sys.salinity_g_l, format!(" (system '{}')", sys.id))
                 }
+                None if on_broken_system => continue,
                 None => {
                     let water = match &t.stated_water {
                         Some((w, _)) => *w,
