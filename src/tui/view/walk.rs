@@ -102,7 +102,7 @@ fn render_fields(app: &App, entry: &TankEntry, theme: Theme, keymap: &Keymap, fr
     let inner = block.inner(area);
     frame.render_widget(block, area);
     let mut lines: Vec<Line> = Vec::new();
-    lines.push(Line::styled(format!("  {:<14}{:<11}{:<11}{:>7}", "", " now", "", "last"), theme.dim()));
+    lines.push(Line::styled(format!("  {:<14}{:<11}{:<13}{:>5}", "", " now", "", "last"), theme.dim()));
     for (i, field) in entry.fields.iter().enumerate() {
         if i == ROUTINE_FIELDS {
             lines.push(Line::styled("  optional", theme.dim()));
@@ -112,7 +112,7 @@ fn render_fields(app: &App, entry: &TankEntry, theme: Theme, keymap: &Keymap, fr
         let value = format!("{}{}{cursor}", provenance_mark(&field.provenance), field.text);
         let value: String = value.chars().take(9).collect();
         let last = entry.previous.as_ref().and_then(|p| p.values[i]).map_or(String::new(), format_value);
-        let unit: String = field.kind.unit().chars().take(10).collect();
+        let unit: String = field.kind.unit().chars().take(12).collect();
         let value_style = if field.error().is_some() {
             theme.error()
         } else if matches!(field.provenance, Provenance::Carried(_)) {
@@ -124,8 +124,8 @@ fn render_fields(app: &App, entry: &TankEntry, theme: Theme, keymap: &Keymap, fr
             Span::raw(if focused { SELECTED } else { UNSELECTED }),
             Span::raw(format!("{:<14}", field.kind.label())),
             Span::styled(format!("[{value:<9}]"), value_style),
-            Span::raw(format!(" {unit:<10}")),
-            Span::styled(format!("{last:>7}"), theme.dim()),
+            Span::raw(format!(" {unit:<12}")),
+            Span::styled(format!("{last:>5}"), theme.dim()),
         ]);
         if focused {
             line = line.style(theme.selected());
