@@ -87,3 +87,57 @@ fn summary() {
     press(&mut app, &keymap, &["s"]);
     both_sizes("summary", &app, &keymap);
 }
+
+#[test]
+fn help_over_the_walk_lists_its_live_keys() {
+    let keymap = Keymap::default_map();
+    let mut app = app();
+    press(&mut app, &keymap, &["w", "?"]);
+    both_sizes("walk_help", &app, &keymap);
+    let vim =
+        Keymap::default_with_overrides(&std::fs::read_to_string("keymaps/vim.toml").unwrap(), "vim.toml").unwrap();
+    let text = draw(&app, &vim, 80, 24).to_string();
+    assert!(text.contains("enter, tab, down, j"), "{text}");
+}
+
+#[test]
+fn tank_page_with_a_prompt_of_the_event_form() {
+    let keymap = Keymap::default_map();
+    let mut app = app();
+    press(&mut app, &keymap, &["enter", "a", "enter"]);
+    both_sizes("event_prompt", &app, &keymap);
+}
+
+#[test]
+fn below_the_minimum_size_one_line_says_what_is_needed() {
+    let keymap = Keymap::default_map();
+    let app = app();
+    let text = draw(&app, &keymap, 79, 24).to_string();
+    assert!(text.contains("tankwalk needs a terminal of at least 80×24; this one is 79×24"), "{text}");
+    // Nothing panics on tiny or empty terminals, on any screen.
+    let mut app = app;
+    for keys in [&[][..], &["w"], &["esc", "enter"], &["esc", "s"], &["esc", "i"]] {
+        press(&mut app, &keymap, keys);
+        for w in 0..=6 {
+            for h in 0..=6 {
+                draw(&app, &keymap, w, h);
+            }
+        }
+    }
+}
+
+#[test]
+fn without_colour_the_selection_and_bands_still_show() {
+    let keymap = Keymap::default_map();
+    let mut app = app();
+    app.colour = false;
+    let buffer = draw(&app, &keymap, 80, 24).buffer().clone();
+    assert!(buffer.content().iter().all(|cell| cell.fg == ratatui::style::Color::Reset));
+    // The selected line is marked by a symbol, not colour alone.
+    let line4: String = (0..80).map(|x| buffer[(x, 4)].symbol().to_string()).collect();
+    assert!(line4.starts_with("▶ "), "{line4}");
+    app.colour = true;
+    let buffer = draw(&app, &keymap, 80, 24).buffer().clone();
+    assert!(buffer.content().iter().any(|cell| cell.fg != ratatui::style::Color::Reset));
+    assert!(buffer[(0, 4)].modifier.contains(ratatui::style::Modifier::REVERSED));
+}
