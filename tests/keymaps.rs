@@ -9,7 +9,7 @@ use proptest::prelude::*;
 use ratatui::Terminal;
 use ratatui::backend::TestBackend;
 use tankwalk::tui::action::Action;
-use tankwalk::tui::help::{HelpOverlay, help_rows};
+use tankwalk::tui::help::{HelpOverlay, help_rows, keys_markdown};
 use tankwalk::tui::keymap::{Context, DEFAULT_KEYMAP, Key, KeyChord, KeyCode, Keymap};
 
 fn files_in(dir: &str) -> Vec<PathBuf> {
@@ -229,4 +229,17 @@ fn help_follows_the_keys_bound() {
     insta::assert_snapshot!("help_board_vim_80x24", render_help(&vim, Context::Board, 80, 24));
     insta::assert_snapshot!("help_walk_default_80x24", render_help(&default, Context::Walk, 80, 24));
     insta::assert_snapshot!("help_walk_vim_160x48", render_help(&vim, Context::Walk, 160, 48));
+}
+
+#[test]
+fn docs_keys_md_is_the_default_keymap() {
+    let generated = keys_markdown(&Keymap::default_map());
+    if std::env::var_os("TANKWALK_WRITE_DOCS").is_some() {
+        std::fs::write("docs/keys.md", &generated).unwrap();
+    }
+    let written = std::fs::read_to_string("docs/keys.md").unwrap_or_default();
+    assert!(
+        written == generated,
+        "docs/keys.md is out of date with keymaps/default.toml: run `TANKWALK_WRITE_DOCS=1 cargo test --test keymaps`"
+    );
 }

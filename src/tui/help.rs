@@ -65,6 +65,32 @@ pub fn text_input_note(context: Context) -> Option<(&'static str, &'static str)>
     }
 }
 
+/// Every context's own keys as a Markdown page (`docs/keys.md` is this, for
+/// the built-in keymap; a test keeps it current).
+pub fn keys_markdown(keymap: &Keymap) -> String {
+    use std::fmt::Write as _;
+    let mut page = String::from(
+        "# Keys\n\nGenerated from `keymaps/default.toml` by the tests (`TANKWALK_WRITE_DOCS=1 cargo test --test \
+         keymaps` rewrites it). `tankwalk keymap show` prints the keys in use, your own file included.\n",
+    );
+    for &context in Context::ALL {
+        let _ = write!(page, "\n## {} (`[{}]`)\n\n", context.title(), context.name());
+        if context.inherits_global() && context != Context::Global {
+            page.push_str("The keys of `[global]` work here too, unless this table uses the same key.\n\n");
+        }
+        page.push_str("| keys | action | does |\n|---|---|---|\n");
+        if let Some((keys, doc)) = text_input_note(context) {
+            let _ = writeln!(page, "| {keys} | | {doc} |");
+        }
+        for row in own_rows(keymap, context) {
+            let keys: Vec<String> = row.chords.iter().map(|c| format!("`{c}`")).collect();
+            let _ =
+                writeln!(page, "| {} | `{}` | {} |", keys.join(", ").replace('|', "\\|"), row.action.name(), row.doc());
+        }
+    }
+    page
+}
+
 /// A footer hint: the first key of an action and its short label.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Hint {
