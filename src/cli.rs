@@ -3,9 +3,18 @@
 //! Exit codes: 0 success; 1 the command ran and failed (or found problems);
 //! 2 the command line or an input value was wrong, and nothing was done.
 
+mod advice;
 mod calc;
 mod check_room;
+mod correct;
+mod doctor;
+mod entry_view;
+mod event;
+mod input;
 mod keymap;
+mod log;
+mod rebuild;
+mod record;
 mod room;
 
 use std::process::ExitCode;
@@ -71,6 +80,38 @@ enum Command {
     CheckRoom(check_room::CheckRoomArgs),
     /// Check a keymap file, or list the keys in use.
     Keymap(keymap::KeymapArgs),
+    /// Save a reading of a tank or a system; prints its id, NH3 and band.
+    Record(record::RecordArgs),
+    /// Save something done to a tank or a system (water change, medication, ...).
+    Event(event::EventArgs),
+    /// Correct or withdraw a saved reading or event; the original is kept.
+    Correct(correct::CorrectArgs),
+    /// History, newest first, with NH3 and band computed on the fly.
+    Log(log::LogArgs),
+    /// Check that the record database and its journal agree.
+    Doctor(doctor::DoctorArgs),
+    /// Recreate the record database from the journal (nothing is deleted).
+    Rebuild(rebuild::RebuildArgs),
+}
+
+/// Opens the record store of the data folder, saying what opening repaired.
+pub fn open_store(global: &GlobalArgs) -> anyhow::Result<tankwalk::store::SledStore> {
+    let dir = global.data_dir()?;
+    let store = tankwalk::store::SledStore::open(&dir)?;
+    let opened = store.opened();
+    if opened.caught_up > 0 {
+        eprintln!(
+            "tankwalk: note: applied {} saved records from the journal that the database lacked",
+            opened.caught_up
+        );
+    }
+    if let Some(aside) = &opened.set_aside {
+        eprintln!(
+            "tankwalk: note: the journal ended with an unfinished line (a save cut short, never confirmed); kept in {}",
+            aside.display()
+        );
+    }
+    Ok(store)
 }
 
 /// Parses the command line, runs it and maps the outcome to an exit code.
@@ -85,6 +126,8 @@ pub fn main() -> ExitCode {
     };
     match run(cli) {
         Ok(code) => code,
+        // A reader that stops early (`tankwalk log | head`) is not a failure.
+        Err(err) if is_broken_pipe(&err) => ExitCode::SUCCESS,
         Err(err) => {
             eprintln!("tankwalk: {err:#}");
             ExitCode::from(if err.downcast_ref::<BadInput>().is_some() { 2 } else { 1 })
@@ -92,11 +135,27 @@ pub fn main() -> ExitCode {
     }
 }
 
+fn is_broken_pipe(err: &anyhow::Error) -> bool {
+    err.chain().any(|cause| {
+        let kind = cause
+            .downcast_ref::<std::io::Error>()
+            .map(std::io::Error::kind)
+            .or_else(|| cause.downcast_ref::<serde_json::Error>().and_then(serde_json::Error::io_error_kind));
+        kind == Some(std::io::ErrorKind::BrokenPipe)
+    })
+}
+
 fn run(cli: Cli) -> anyhow::Result<ExitCode> {
     match cli.command {
         Some(Command::Calc(args)) => calc::run(&args, &cli.global),
         Some(Command::CheckRoom(args)) => check_room::run(&args),
         Some(Command::Keymap(args)) => keymap::run(&cli.global, &cli.keymap, &args),
+        Some(Command::Record(args)) => record::run(&cli.global, &args),
+        Some(Command::Event(args)) => event::run(&cli.global, &args),
+        Some(Command::Correct(args)) => correct::run(&cli.global, &args),
+        Some(Command::Log(args)) => log::run(&cli.global, &args),
+        Some(Command::Doctor(args)) => doctor::run(&cli.global, &args),
+        Some(Command::Rebuild(args)) => rebuild::run(&cli.global, &args),
         None => {
             use clap::CommandFactory;
             Cli::command().print_help()?;

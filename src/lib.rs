@@ -6,6 +6,7 @@
 //! - [`model`]: the facility (room, species profiles, systems, tanks), parsed
 //!   and validated from its TOML file, and the records of readings, events and
 //!   corrections;
+//! - [`store`]: durable storage of records (journal + sled);
 //! - [`tui`]: the terminal screen (keymaps, pure state and update, views);
 //!
 //! The command line (`src/cli.rs`, in the binary) is the only place that
@@ -19,6 +20,7 @@ pub mod model;
 pub mod numfmt;
 pub mod paths;
 pub mod rules;
+pub mod store;
 pub mod tui;
 
 /// The caution shown with every assessment.

@@ -710,7 +710,8 @@ fn mass_balance_by_hand() {
     assert_eq!(change.quantity, Some(45.0));
     let litres = change.also.unwrap();
     assert_eq!((litres.quantity, litres.unit), (608.0, "L")); // 0.45 × 1350 = 607.5 → 608
-    assert!(change.reason.starts_with("repeat ×2"), "{}", change.reason);
+    assert_eq!(change.repeat, Some(2));
+    assert!(change.reason.starts_with("2 changes of 45 %"), "{}", change.reason);
     assert!(change.reason.contains("0.82 → 0.25 mg/L TAN-N"), "{}", change.reason);
 }
 

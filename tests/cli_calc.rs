@@ -142,3 +142,95 @@ fn bad_input_is_refused_with_the_option_named() {
         assert!(!stderr.contains("panicked"), "{args:?} panicked");
     }
 }
+
+fn room_calc(args: &[&str]) -> Output {
+    let room = concat!(env!("CARGO_MANIFEST_DIR"), "/sample-rooms/harbourside-holding.toml");
+    let data = tempfile::tempdir().unwrap();
+    Command::new(env!("CARGO_BIN_EXE_tankwalk"))
+        .args(["--room", room, "--data-dir"])
+        .arg(data.path())
+        .arg("calc")
+        .args(args)
+        .env_clear()
+        .output()
+        .expect("binary runs")
+}
+
+#[test]
+fn with_a_tank_the_assessment_comes_with_the_figures() {
+    // B-01 (neon, edges 0.015/0.04/0.15) on RACK-B: 25 °C, pH 7.0, 8 mg/L TAN-N →
+    // NH3-N 0.0451 (act); at the room's source pH 7.6 → 0.177 (critical).
+    let out = room_calc(&["--tank", "B-01", "--temp-c", "25", "--ph", "7.0", "--tan", "8", "--json"]);
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["band"], "act");
+    assert_eq!(v["latent_band"], "critical");
+    assert_eq!(v["latent"]["basis"], "source-water");
+    let kinds: Vec<&str> = v["actions"].as_array().unwrap().iter().map(|a| a["kind"].as_str().unwrap()).collect();
+    assert_eq!(kinds.first(), Some(&"water-change"), "{kinds:?}");
+    assert!(kinds.contains(&"zeolite") && !kinds.contains(&"add-salt"), "{kinds:?}");
+    let change = &v["actions"][0];
+    assert_eq!(change["unit"], "%");
+    assert_eq!(change["also"]["unit"], "L");
+    assert!(v["do_not"].as_array().unwrap().iter().any(|w| w["kind"] == "do-not-raise-ph"));
+    // The text form lists the actions and the caution.
+    let out = room_calc(&["--tank", "B-01", "--temp-c", "25", "--ph", "7.0", "--tan", "8"]);
+    let text = String::from_utf8(out.stdout).unwrap();
+    for needle in ["Do now:", "1. Water change", "Do not:", "critical", "not veterinary advice"] {
+        assert!(text.contains(needle), "missing {needle:?} in\n{text}");
+    }
+}
+
+#[test]
+fn what_if_moves_nh3_and_band() {
+    // Reference §8: TAN 2.0 at pH 7.0, 25 °C; a 50 % change takes TAN to 1.0 + 0.5 × 0.3
+    // (the room's source carries 0.3 mg/L TAN-N) = 1.15 at the source's pH 7.6 and
+    // (25 + 24)/2 = 24.5 °C.
+    let out = room_calc(&[
+        "--tank",
+        "A-03",
+        "--temp-c",
+        "25",
+        "--ph",
+        "7.0",
+        "--tan",
+        "2",
+        "--what-if",
+        "change=50",
+        "--json",
+    ]);
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let w = &v["what_if"];
+    assert!((w["tan_n_mg_l"].as_f64().unwrap() - 1.15).abs() < 1e-12, "{w}");
+    assert_eq!(w["ph"], 7.6);
+    assert!((w["temp_c"].as_f64().unwrap() - 24.5).abs() < 1e-12);
+    // NH3-N before 2.0 × 0.005639 = 0.0113 (clear); after 1.15 × f(24.5 °C, 7.6) ≈ 0.0244 (watch):
+    // halving total ammonia with more alkaline water raised the toxic part.
+    assert_eq!(v["band"], "clear");
+    assert_eq!(w["band"], "watch");
+    // Cooler and lower pH without a tank: pH 7.0 at 25 °C with 1 mg/L → 0.0056 NH3-N.
+    let v = json(&["--temp-c", "25", "--ph", "8.0", "--tan", "1", "--what-if", "ph=7.0"]);
+    assert!((v["what_if"]["nh3_n_mg_l"].as_f64().unwrap() - 0.00563855384336188).abs() < 1e-12);
+    assert_eq!(v["latent_band"], "act", "pH 8.5 at 25 °C: 0.152 NH3-N");
+}
+
+#[test]
+fn what_if_refuses_bad_changes() {
+    let cases: &[(&[&str], &str)] = &[
+        (&["--what-if", "change=40"], "--what-if change: a water change needs the tank"),
+        (&["--what-if", "ph=15"], "--what-if ph: pH 15 is outside the allowed range 0–14"),
+        (&["--what-if", "colour=red"], "--what-if colour: 'red' is not a number"),
+        (&["--what-if", "colour=1"], "--what-if: unknown change 'colour'"),
+        (&["--what-if", "ph"], "--what-if: 'ph' is not key=value"),
+        (&["--what-if", ""], "--what-if: no change given"),
+    ];
+    for (extra, message) in cases {
+        let mut args = vec!["--temp-c", "25", "--ph", "7", "--tan", "1"];
+        args.extend_from_slice(extra);
+        let out = calc(&args);
+        let stderr = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{args:?}: {stderr}");
+        assert!(stderr.contains(message), "{args:?}: expected {message:?} in {stderr:?}");
+    }
+}

@@ -14,7 +14,14 @@ use tankwalk::core::sample::{self, WaterSample};
 use tankwalk::core::units::{self, AmmoniaBasis};
 use tankwalk::numfmt::sig;
 
-use tankwalk::model::{EffectiveProfile, VolumeUnit, WaterType};
+use tankwalk::model::record::{Reading, Target, Temperature, TotalAmmonia};
+use tankwalk::model::{EffectiveProfile, Facility, VolumeUnit, WaterType};
+use tankwalk::rules::latent::{Latent, latent};
+use tankwalk::rules::water_change::SourceWater;
+use tankwalk::rules::what_if::{WhatIf, apply};
+use tankwalk::rules::{Assessment, Inputs, RulesConfig, assess};
+
+use super::advice;
 
 use super::room::resolve_room;
 use super::{GlobalArgs, bad_input};
@@ -64,9 +71,60 @@ pub struct CalcArgs {
     /// salinity unless one is given, and the room's kit basis and elevation (needs a room).
     #[arg(long, value_name = "ID")]
     tank: Option<String>,
+    /// Try changes and see NH3 and band move: comma-separated `ph=`, `temp-c=`, `temp-f=`,
+    /// `salinity=` (g/L) and `change=` (water-change percent, with the room's source water;
+    /// needs --tank), e.g. `--what-if change=40,temp-c=24`.
+    #[arg(long, value_name = "CHANGES")]
+    what_if: Option<String>,
     /// Print one JSON object instead of a table.
     #[arg(long)]
     json: bool,
+}
+
+/// Parses `--what-if`: `key=value` pairs separated by commas, each range-checked.
+fn parse_what_if(text: &str, has_tank: bool) -> Result<WhatIf> {
+    let mut what_if = WhatIf::default();
+    for part in text.split(',').map(str::trim).filter(|p| !p.is_empty()) {
+        let Some((key, value)) = part.split_once('=') else {
+            return Err(bad_input!(
+                "--what-if: '{part}' is not key=value (keys: ph, temp-c, temp-f, salinity, change)"
+            ));
+        };
+        let key = key.trim().to_ascii_lowercase();
+        let value: f64 =
+            value.trim().parse().map_err(|_| bad_input!("--what-if {key}: '{}' is not a number", value.trim()))?;
+        let mut ignored = Vec::new();
+        let check =
+            |q: Quantity, v: f64, ignored: &mut Vec<String>| checked(&format!("--what-if {key}"), q, v, ignored);
+        match key.as_str() {
+            "ph" => what_if.ph = Some(check(Quantity::Ph, value, &mut ignored)?),
+            "temp-c" | "temp" => what_if.temp_c = Some(check(Quantity::TemperatureC, value, &mut ignored)?),
+            "temp-f" => {
+                what_if.temp_c = Some(check(Quantity::TemperatureC, units::fahrenheit_to_celsius(value), &mut ignored)?)
+            }
+            "salinity" | "salinity-ppt" => what_if.salinity_ppt = Some(check(Quantity::Salinity, value, &mut ignored)?),
+            "change" | "water-change" => {
+                if !has_tank {
+                    return Err(bad_input!(
+                        "--what-if change: a water change needs the tank and its room's source water: add --tank"
+                    ));
+                }
+                if !(0.0..=100.0).contains(&value) {
+                    return Err(bad_input!("--what-if change: {value} % is outside 0–100 %"));
+                }
+                what_if.water_change_percent = Some(value);
+            }
+            other => {
+                return Err(bad_input!(
+                    "--what-if: unknown change '{other}' (use ph, temp-c, temp-f, salinity, change)"
+                ));
+            }
+        }
+    }
+    if what_if.is_empty() {
+        return Err(bad_input!("--what-if: no change given (for example --what-if change=40,temp-c=24)"));
+    }
+    Ok(what_if)
 }
 
 /// Checks one option's value against its quantity's range.
@@ -194,8 +252,43 @@ struct CalcOutput {
     elevation_m: f64,
     #[serde(skip_serializing_if = "Option::is_none")]
     tank: Option<TankOutput>,
+    /// Band if pH rose (to the source water's pH with --tank, else by 0.5).
+    latent_band: Band,
+    latent: Latent,
+    /// The tank's assessment (with --tank): trend, biofilter, actions, what not to do.
+    #[serde(skip_serializing_if = "Option::is_none", flatten)]
+    advice: Option<AdviceFields>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    what_if: Option<WhatIfOutput>,
     warnings: Vec<String>,
     caution: &'static str,
+}
+
+/// The assessment fields calc adds with --tank (band and latent are already above).
+#[derive(Debug, Serialize)]
+struct AdviceFields {
+    measured_band: Option<Band>,
+    raised_by: Vec<String>,
+    biofilter: tankwalk::rules::Biofilter,
+    actions: Vec<tankwalk::rules::Action>,
+    do_not: Vec<tankwalk::rules::Warning>,
+}
+
+/// The water after `--what-if`, with its NH3, band and (with --tank) actions.
+#[derive(Debug, Serialize)]
+struct WhatIfOutput {
+    changes: WhatIf,
+    temp_c: f64,
+    ph: f64,
+    tan_n_mg_l: f64,
+    salinity_ppt: f64,
+    nh3_fraction: f64,
+    nh3_mg_l: f64,
+    nh3_n_mg_l: f64,
+    band: Band,
+    latent_band: Band,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    actions: Option<Vec<tankwalk::rules::Action>>,
 }
 
 /// The tank a reading came from, as the facility file describes it.
@@ -221,6 +314,7 @@ struct TankContext {
     output: TankOutput,
     defaults: Defaults,
     profile: EffectiveProfile,
+    facility: Facility,
 }
 
 fn tank_context(label: &str, global: &GlobalArgs) -> Result<TankContext> {
@@ -263,7 +357,42 @@ fn tank_context(label: &str, global: &GlobalArgs) -> Result<TankContext> {
             volume_unit: facility.room.volume_unit.symbol(),
             stock_count: tank.stock_count,
         },
+        facility,
     })
+}
+
+impl TankContext {
+    /// The assessment of `sample` in this tank, taken now.
+    fn assess(&self, sample: &WaterSample) -> Assessment {
+        let tank = self.facility.tank(&self.output.id).expect("the tank was found when the context was built");
+        let mut reading = Reading::new(Target::Tank(self.output.id.clone()));
+        let m = &mut reading.measurements;
+        m.temperature = Some(Temperature::celsius(sample.temp_c));
+        m.ph = Some(sample.ph);
+        m.total_ammonia = Some(TotalAmmonia { value: sample.tan_n_mg_l, basis: AmmoniaBasis::N });
+        m.salinity = Some(SalinityReading::Ppt { value: sample.salinity_ppt });
+        m.dissolved_oxygen_mg_l = sample.do_mg_l;
+        let config = RulesConfig::default();
+        assess(&Inputs {
+            facility: &self.facility,
+            tank,
+            reading: &reading,
+            at: chrono::Utc::now(),
+            history: &[],
+            events: &[],
+            config: &config,
+        })
+    }
+
+    /// The room's source water, for what-if water changes.
+    fn source_water(&self) -> SourceWater {
+        let room = self.facility.room.source_water.as_ref();
+        SourceWater {
+            tan_n_mg_l: room.and_then(|r| r.tan_n_mg_l).unwrap_or(0.0),
+            ph: room.and_then(|r| r.ph),
+            temp_c: room.and_then(|r| r.temp_c),
+        }
+    }
 }
 
 /// Warnings when the water is outside what the tank's species are kept at.
@@ -306,7 +435,33 @@ pub fn run(args: &CalcArgs, global: &GlobalArgs) -> Result<ExitCode> {
         }
         None => (BandEdges::DEFAULT, "tankwalk defaults".to_string()),
     };
+    let what_if = args.what_if.as_deref().map(|text| parse_what_if(text, tank.is_some())).transpose()?;
     let derived = sample::derive(&parsed.sample, &edges, parsed.elevation_m);
+    let assessment = tank.as_ref().map(|t| t.assess(&parsed.sample));
+    let latent_of = |sample: &WaterSample, assessment: Option<&Assessment>| {
+        assessment.and_then(|a| a.latent).unwrap_or_else(|| latent(sample, &edges, None))
+    };
+    let latent_now = latent_of(&parsed.sample, assessment.as_ref());
+    let what_if_out = what_if.map(|changes| {
+        let source =
+            tank.as_ref().map_or(SourceWater { tan_n_mg_l: 0.0, ph: None, temp_c: None }, |t| t.source_water());
+        let changed = apply(&parsed.sample, &source, &changes);
+        let d = sample::derive(&changed, &edges, parsed.elevation_m);
+        let changed_assessment = tank.as_ref().map(|t| t.assess(&changed));
+        WhatIfOutput {
+            changes,
+            temp_c: changed.temp_c,
+            ph: changed.ph,
+            tan_n_mg_l: changed.tan_n_mg_l,
+            salinity_ppt: changed.salinity_ppt,
+            nh3_fraction: d.toxic.fraction,
+            nh3_mg_l: d.toxic.nh3_mg_l,
+            nh3_n_mg_l: d.toxic.nh3_n_mg_l,
+            band: d.band,
+            latent_band: latent_of(&changed, changed_assessment.as_ref()).band,
+            actions: changed_assessment.map(|a| a.actions),
+        }
+    });
     let out = CalcOutput {
         temp_c: parsed.sample.temp_c,
         ph: parsed.sample.ph,
@@ -334,6 +489,16 @@ pub fn run(args: &CalcArgs, global: &GlobalArgs) -> Result<ExitCode> {
         do_percent: derived.do_percent,
         elevation_m: parsed.elevation_m,
         tank: tank.map(|t| t.output),
+        latent_band: latent_now.band,
+        latent: latent_now,
+        advice: assessment.as_ref().map(|a| AdviceFields {
+            measured_band: a.measured_band,
+            raised_by: a.raised_by.clone(),
+            biofilter: a.biofilter.clone(),
+            actions: a.actions.clone(),
+            do_not: a.warnings.clone(),
+        }),
+        what_if: what_if_out,
         warnings: parsed.warnings.clone(),
         caution: tankwalk::CAUTION,
     };
@@ -343,6 +508,23 @@ pub fn run(args: &CalcArgs, global: &GlobalArgs) -> Result<ExitCode> {
         writeln!(stdout)?;
     } else {
         write_table(&mut stdout, &out, &parsed)?;
+        match &assessment {
+            Some(a) => advice::write_text(&mut stdout, a)?,
+            None => writeln!(
+                stdout,
+                "  {:<18} to {:.1} (source pH unknown: pH + 0.5): {} mg/L NH3-N {} {}\n\
+                 Give --room FILE --tank ID for actions sized to the tank.",
+                "if pH rose",
+                latent_now.ph,
+                sig(latent_now.nh3_n_mg_l, 3),
+                latent_now.band.glyph(),
+                latent_now.band
+            )?,
+        }
+        if let Some(w) = &out.what_if {
+            write_what_if(&mut stdout, w)?;
+        }
+        writeln!(stdout, "{}", out.caution)?;
     }
     Ok(ExitCode::SUCCESS)
 }
@@ -411,5 +593,42 @@ fn write_table(w: &mut impl Write, out: &CalcOutput, parsed: &Parsed) -> std::io
     for warning in &out.warnings {
         writeln!(w, "warning: {warning}")?;
     }
-    writeln!(w, "{}", out.caution)
+    Ok(())
+}
+
+fn write_what_if(w: &mut impl Write, out: &WhatIfOutput) -> std::io::Result<()> {
+    let c = &out.changes;
+    let mut changed = Vec::new();
+    if let Some(p) = c.water_change_percent {
+        changed.push(format!("a {p} % water change"));
+    }
+    if let Some(ph) = c.ph {
+        changed.push(format!("pH {ph}"));
+    }
+    if let Some(t) = c.temp_c {
+        changed.push(format!("{} °C", sig(t, 3)));
+    }
+    if let Some(s) = c.salinity_ppt {
+        changed.push(format!("{} g/L salt", sig(s, 3)));
+    }
+    writeln!(w, "What if {}:", changed.join(", "))?;
+    writeln!(
+        w,
+        "  total ammonia {} mg/L TAN-N at pH {:.2}, {} °C, {} g/L → NH3 {} mg/L NH3-N ({} mg/L NH3) {} {}; if pH rose: {}",
+        sig(out.tan_n_mg_l, 3),
+        out.ph,
+        sig(out.temp_c, 3),
+        sig(out.salinity_ppt, 3),
+        sig(out.nh3_n_mg_l, 3),
+        sig(out.nh3_mg_l, 3),
+        out.band.glyph(),
+        out.band,
+        out.latent_band
+    )?;
+    if let Some(actions) = &out.actions {
+        for (i, action) in actions.iter().enumerate() {
+            writeln!(w, "  {}. {}", i + 1, advice::action_line(action))?;
+        }
+    }
+    Ok(())
 }

@@ -300,7 +300,7 @@ impl Reading {
     pub fn check(&self) -> Result<Vec<FieldWarning>, RecordError> {
         self.target.check()?;
         if let Some(note) = &self.note {
-            check_text(Field::Note, note, MAX_TEXT_CHARS, true)?;
+            check_note(note)?;
         }
         self.observations.check()?;
         if self.measurements.is_empty() && self.observations.is_empty() {
@@ -661,7 +661,8 @@ impl Observations {
         !self.any_sign() && self.deaths == 0
     }
 
-    fn check(&self) -> Result<(), RecordError> {
+    /// Checks the death count.
+    pub fn check(&self) -> Result<(), RecordError> {
         if self.deaths > MAX_FISH_COUNT {
             return Err(RecordError::invalid(
                 Field::Deaths,
@@ -691,7 +692,7 @@ impl Event {
     pub fn check(&self) -> Result<(), RecordError> {
         self.target.check()?;
         if let Some(note) = &self.note {
-            check_text(Field::Note, note, MAX_TEXT_CHARS, true)?;
+            check_note(note)?;
         }
         self.kind.check()
     }
@@ -1144,6 +1145,12 @@ fn check_alkalinity(a: Alkalinity, warnings: &mut Vec<FieldWarning>) -> Result<(
         ));
     }
     check_value(field, Quantity::Alkalinity, canonical, warnings)
+}
+
+/// Checks a note: at most [`MAX_TEXT_CHARS`] characters, no control
+/// characters other than newline and tab.
+pub fn check_note(note: &str) -> Result<(), RecordError> {
+    check_text(Field::Note, note, MAX_TEXT_CHARS, true)
 }
 
 fn check_text(field: Field, text: &str, max_chars: usize, multi_line: bool) -> Result<(), RecordError> {

@@ -96,6 +96,9 @@ pub struct Action {
     /// A second quantity where one is not enough (litres beside a percent).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub also: Option<Quantity>,
+    /// How many times to repeat it (a sequence of water changes), when more than once.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub repeat: Option<u32>,
     /// Why, and what it achieves, in words a person can check.
     pub reason: String,
 }
@@ -112,12 +115,12 @@ pub struct Quantity {
 impl Action {
     /// An action without a quantity.
     pub fn plain(kind: ActionKind, reason: impl Into<String>) -> Action {
-        Action { kind, quantity: None, unit: None, also: None, reason: reason.into() }
+        Action { kind, quantity: None, unit: None, also: None, repeat: None, reason: reason.into() }
     }
 
     /// An action with a quantity.
     pub fn amount(kind: ActionKind, quantity: f64, unit: &'static str, reason: impl Into<String>) -> Action {
-        Action { kind, quantity: Some(quantity), unit: Some(unit), also: None, reason: reason.into() }
+        Action { kind, quantity: Some(quantity), unit: Some(unit), also: None, repeat: None, reason: reason.into() }
     }
 
     /// The same action with a second quantity.
@@ -149,6 +152,8 @@ pub enum WarningKind {
     PhOutsideRange,
     /// A dose would need more salt than the species tolerate.
     SaltBeyondTolerance,
+    /// The source water's temperature would chill or heat the tank.
+    TemperatureShock,
 }
 
 /// A warning shown beside the actions.

@@ -217,6 +217,11 @@ fn practical(x: f64) -> f64 {
     }
 }
 
+/// Grams for people: kilograms from 1 kg up.
+fn mass_text(grams: f64) -> String {
+    if grams >= 1000.0 { format!("{} kg", sig(grams / 1000.0, 3)) } else { format!("{} g", sig(grams, 3)) }
+}
+
 fn nh3_text(nh3_n: f64) -> String {
     format!("{} mg/L NH3-N", sig(nh3_n, 2))
 }
@@ -600,7 +605,30 @@ impl Plan<'_> {
             salinity_ppt: sample.salinity_ppt,
             volume_l: self.volume_l,
         };
-        match water_change::plan(&tank, &self.source, target) {
+        let mut planned = water_change::plan(&tank, &self.source, target);
+        let mut out_of_reach = false;
+        if let Planned::Unreachable { source_nh3_n_mg_l } = planned {
+            let ph = water_change::planning_ph(sample.ph, &self.source);
+            let remedy = if ph > sample.ph + 0.05 {
+                "bring the source water's pH down to the tank's first"
+            } else {
+                "remove or bind the source water's own ammonia first (a chloramine remover that binds ammonia)"
+            };
+            self.warn(
+                WarningKind::SourceCannotDilute,
+                format!(
+                    "even pure source water would hold {} at pH {ph:.1}: a water change cannot bring NH3 below the \
+                     watch edge; {remedy}",
+                    nh3_text(source_nh3_n_mg_l),
+                ),
+            );
+            // Clear is out of reach, but dilution still helps: aim a quarter above
+            // what the source water itself would leave, when that is a real cut.
+            let best = 1.25 * source_nh3_n_mg_l;
+            out_of_reach = true;
+            planned = if best < 0.8 * nh3 { water_change::plan(&tank, &self.source, best) } else { Planned::NotNeeded };
+        }
+        match planned {
             Planned::Plan(p) => {
                 let percent = (p.fraction_each * 100.0).round();
                 let (amount, unit) = self.units.volume_value(p.litres_each);
@@ -619,8 +647,9 @@ impl Plan<'_> {
                     format!(" at pH {:.1}", p.ph_after)
                 };
                 let daily = if cycling { "; while the tank cycles, repeat daily to keep ammonia low" } else { "" };
+                let reach = if out_of_reach { "clear is out of reach with this source water, but " } else { "" };
                 let reason = format!(
-                    "{steps} of {}: total ammonia {} → {} mg/L TAN-N, NH3 {} ({measured}) → {} ({}){ph_note} and {}; \
+                    "{reach}{steps} of {}: total ammonia {} → {} mg/L TAN-N, NH3 {} ({measured}) → {} ({}){ph_note} and {}; \
                      dechlorinate the new water and match its temperature and pH{daily}",
                     self.volume_name(),
                     sig(sample.tan_n_mg_l, 2),
@@ -631,23 +660,24 @@ impl Plan<'_> {
                     self.units.temp(p.temp_after_c),
                 );
                 let mut action = Action::amount(ActionKind::WaterChange, percent, "%", reason).and_also(amount, unit);
-                if p.changes > 1 {
-                    action.reason = format!("repeat ×{}: {}", p.changes, action.reason);
-                }
+                action.repeat = (p.changes > 1).then_some(p.changes);
                 self.actions.push(action);
+                let shock = (p.temp_after_c - sample.temp_c).abs() > 2.0
+                    || self.profile.temp_c.is_some_and(|range| !range.contains(p.temp_after_c));
+                if let (true, Some(source_c)) = (shock, self.source.temp_c) {
+                    self.warn(
+                        WarningKind::TemperatureShock,
+                        format!(
+                            "the source water is {}: these changes would take the tank to {}; bring the new water to \
+                             about {} first",
+                            self.units.temp(source_c),
+                            self.units.temp(p.temp_after_c),
+                            self.units.temp(sample.temp_c)
+                        ),
+                    );
+                }
             }
-            Planned::Unreachable { source_nh3_n_mg_l } => {
-                self.warn(
-                    WarningKind::SourceCannotDilute,
-                    format!(
-                        "even pure source water would hold {} at pH {:.1}: a water change cannot bring NH3 below the \
-                         watch edge; bring the source water's pH down to the tank's or bind its ammonia first",
-                        nh3_text(source_nh3_n_mg_l),
-                        water_change::planning_ph(sample.ph, &self.source)
-                    ),
-                );
-            }
-            Planned::NotNeeded => {}
+            Planned::Unreachable { .. } | Planned::NotNeeded => {}
         }
     }
 
@@ -708,10 +738,10 @@ impl Plan<'_> {
                         grams,
                         "g",
                         format!(
-                            "the species tolerate {} g/L: dissolve {} g of non-iodised salt for {} to go from {} to {} \
+                            "the species tolerate {} g/L: dissolve {} of non-iodised salt for {} to go from {} to {} \
                              g/L: NH3 {} → {} ({}), mild, and it eases nitrite and osmotic stress; not with zeolite",
                             sig(tolerance, 2),
-                            sig(grams, 3),
+                            mass_text(grams),
                             self.volume_name(),
                             sig(sample.salinity_ppt, 2),
                             sig(target, 2),
@@ -825,11 +855,11 @@ impl Plan<'_> {
                 "g",
                 format!(
                     "nitrite {} mg/L NO2-N ({} mg/L NO2-): keep chloride at least {}× nitrite (SRAC 462) — dissolve {} \
-                     g of plain salt (NaCl) for {} to raise chloride from {} to {} mg/L{assumed}",
+                     of plain salt (NaCl) for {} to raise chloride from {} to {} mg/L{assumed}",
                     sig(nitrite_n, 2),
                     sig(nitrite_ion, 2),
                     self.config.chloride_to_nitrite,
-                    sig(grams, 3),
+                    mass_text(grams),
                     self.volume_name(),
                     sig(have, 2),
                     sig(needed, 2)
