@@ -16,6 +16,7 @@ mod log;
 mod rebuild;
 mod record;
 mod room;
+mod screen;
 
 use std::process::ExitCode;
 
@@ -80,6 +81,8 @@ enum Command {
     CheckRoom(check_room::CheckRoomArgs),
     /// Check a keymap file, or list the keys in use.
     Keymap(keymap::KeymapArgs),
+    /// Open the screen on a sample room with a generated history, in a throw-away store.
+    Demo(screen::DemoArgs),
     /// Save a reading of a tank or a system; prints its id, NH3 and band.
     Record(record::RecordArgs),
     /// Save something done to a tank or a system (water change, medication, ...).
@@ -150,17 +153,14 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         Some(Command::Calc(args)) => calc::run(&args, &cli.global),
         Some(Command::CheckRoom(args)) => check_room::run(&args),
         Some(Command::Keymap(args)) => keymap::run(&cli.global, &cli.keymap, &args),
+        Some(Command::Demo(args)) => screen::demo(&cli.global, &cli.keymap, &args),
         Some(Command::Record(args)) => record::run(&cli.global, &args),
         Some(Command::Event(args)) => event::run(&cli.global, &args),
         Some(Command::Correct(args)) => correct::run(&cli.global, &args),
         Some(Command::Log(args)) => log::run(&cli.global, &args),
         Some(Command::Doctor(args)) => doctor::run(&cli.global, &args),
         Some(Command::Rebuild(args)) => rebuild::run(&cli.global, &args),
-        None => {
-            use clap::CommandFactory;
-            Cli::command().print_help()?;
-            Ok(ExitCode::SUCCESS)
-        }
+        None => screen::open(&cli.global, &cli.keymap),
     }
 }
 

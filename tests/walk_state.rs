@@ -264,6 +264,7 @@ fn skipping_asks_a_reason_and_goes_on() {
     assert!(matches!(w.app.modal, Some(Modal::Pick(_))));
     w.keys("down enter");
     assert_eq!(w.tank(), "T-2");
+    assert_eq!(w.status(), (StatusKind::Info, "Skipped T-1: fish being moved or treated".to_string()));
     let t1 = w.app.tank_index("T-1").unwrap();
     assert_eq!(w.app.statuses[t1].due, Due::Skipped);
     assert_eq!(w.app.skips[&t1], "fish being moved or treated");

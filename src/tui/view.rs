@@ -255,6 +255,12 @@ pub fn centered(area: Rect, width: u16, height: u16) -> Rect {
     Rect { x: area.x + (area.width - width) / 2, y: area.y + (area.height - height) / 2, width, height }
 }
 
+/// An amount as a person reads it: three significant figures, no trailing zeros.
+pub fn amount(value: f64) -> String {
+    let text = crate::numfmt::sig(value, 3);
+    if text.contains('.') { text.trim_end_matches('0').trim_end_matches('.').to_string() } else { text }
+}
+
 /// The first key bound to `action` in `context`, for text such as "press s to save".
 pub fn key_of(keymap: &Keymap, context: Context, action: Action) -> String {
     keymap.chords_for(context, action).first().map_or_else(|| action.name().to_string(), ToString::to_string)

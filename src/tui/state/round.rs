@@ -152,7 +152,8 @@ pub fn tank_status(
     } else {
         match last_at {
             None => Due::Never,
-            Some(at) if now - at >= interval + interval / 2 => Due::Overdue,
+            // A whole round missed.
+            Some(at) if now - at >= interval * 2 => Due::Overdue,
             // A little early is still this round's reading (readings drift by an hour or two).
             Some(at) if now - at >= interval - interval / 4 => Due::Due,
             Some(_) => Due::NotDue,

@@ -29,6 +29,8 @@ pub struct Attention {
     pub actions: Vec<Suggestion>,
     /// What not to do.
     pub warnings: Vec<Warning>,
+    /// For a shared water: the system and how many of its tanks share this verdict.
+    pub shared: Option<(String, usize)>,
 }
 
 /// The round in figures.
@@ -85,13 +87,28 @@ pub fn summarize(app: &App) -> Summary {
                 reading.observations = round::observations_this_round(&app.history, tank, app.round_start);
                 let a = verdict::assess_reading(app, t, &reading, entry.taken_at, entry.taken_at);
                 if let (Some(band), Some(figures)) = (a.band, a.figures) {
-                    summary.attention.push(Attention {
-                        tank: t,
-                        band,
-                        nh3_n_mg_l: figures.nh3_n_mg_l,
-                        actions: a.actions,
-                        warnings: a.warnings,
+                    let system = tank.system.as_ref().map(|s| s.as_str().to_string());
+                    // Tanks of one system with the same verdict are one line: the water is shared.
+                    let same = summary.attention.iter_mut().find(|x| {
+                        x.shared.as_ref().map(|(s, _)| Some(s)) == Some(system.as_ref())
+                            && x.band == band
+                            && x.nh3_n_mg_l == figures.nh3_n_mg_l
                     });
+                    match same {
+                        Some(existing) => {
+                            if let Some((_, n)) = &mut existing.shared {
+                                *n += 1;
+                            }
+                        }
+                        None => summary.attention.push(Attention {
+                            tank: t,
+                            band,
+                            nh3_n_mg_l: figures.nh3_n_mg_l,
+                            actions: a.actions,
+                            warnings: a.warnings,
+                            shared: system.map(|s| (s, 1)),
+                        }),
+                    }
                 }
             }
         }

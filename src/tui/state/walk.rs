@@ -404,11 +404,14 @@ fn advance(app: &mut App) {
             let counts = app.round_counts();
             app.say(
                 StatusKind::Success,
-                format!("Round complete: {} done, {} skipped. Your readings are saved.", counts.done, counts.skipped),
+                format!("{ROUND_COMPLETE}: {} done, {} skipped. Your readings are saved.", counts.done, counts.skipped),
             );
         }
     }
 }
+
+/// How the status line announces the end of the round.
+const ROUND_COMPLETE: &str = "Round complete";
 
 /// Types into the focused field.
 pub fn type_char(app: &mut App, c: char) {
@@ -572,8 +575,9 @@ pub fn skip(app: &mut App, reason: String) -> Vec<Effect> {
     let label = app.tank(tank).id.as_str().to_string();
     app.skips.insert(tank, reason.clone());
     app.refresh_statuses();
+    app.status = None;
     advance(app);
-    if app.status.as_ref().is_none_or(|s| s.kind != StatusKind::Success) {
+    if app.status.is_none() {
         app.say(StatusKind::Info, format!("Skipped {label}: {reason}"));
     }
     Vec::new()
@@ -750,8 +754,9 @@ pub fn save(app: &mut App) -> Vec<Effect> {
             }
             app.skips.remove(&tank);
             app.refresh_statuses();
+            app.status = None;
             advance(app);
-            if app.status.as_ref().is_none_or(|s| s.kind != StatusKind::Success) {
+            if app.status.is_none() {
                 app.say(StatusKind::Info, format!("{label}: nothing changed"));
             }
             Vec::new()
@@ -805,11 +810,13 @@ pub fn saved(app: &mut App, tank: usize, result: Result<Vec<Record>, String>) {
             app.skips.remove(&tank);
             app.refresh_statuses();
             let status = &app.statuses[tank];
-            let band = status.band.map(|b| format!(" · {} {}", b.glyph(), b.name())).unwrap_or_default();
+            let band = status.band.map(|b| format!(" ({} {})", b.glyph(), b.name())).unwrap_or_default();
             let what = if corrected { "Correction saved" } else { "Saved" };
             let message = format!("{what}: {label} is on disk{band}");
+            app.status = None;
+            // The end of the round, when this was the last tank, says more.
             advance(app);
-            if app.status.as_ref().is_none_or(|s| !s.text.starts_with("Round complete")) {
+            if app.status.is_none() {
                 app.say(StatusKind::Success, message);
             }
         }

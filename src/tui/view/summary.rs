@@ -46,7 +46,10 @@ pub(super) fn render(app: &App, state: &SummaryState, theme: Theme, frame: &mut 
         lines.push((false, Line::styled("   none", theme.dim())));
     }
     for attention in &summary.attention {
-        let label = app.tank(attention.tank).id.as_str().to_string();
+        let label = match &attention.shared {
+            Some((system, n)) if *n > 1 => format!("{system} ({n} tanks, shared water)"),
+            _ => app.tank(attention.tank).id.as_str().to_string(),
+        };
         tank_line(
             &mut lines,
             n,
@@ -58,10 +61,10 @@ pub(super) fn render(app: &App, state: &SummaryState, theme: Theme, frame: &mut 
         n += 1;
         for action in attention.actions.iter().take(3) {
             let quantity = match (action.quantity, action.unit) {
-                (Some(q), Some(u)) => format!(" {} {u}", sig(q, 3)),
+                (Some(q), Some(u)) => format!(" {} {u}", super::amount(q)),
                 _ => String::new(),
             };
-            let also = action.also.map_or(String::new(), |q| format!(" ({} {})", sig(q.quantity, 3), q.unit));
+            let also = action.also.map_or(String::new(), |q| format!(" ({} {})", super::amount(q.quantity), q.unit));
             lines.push((false, Line::raw(format!("      • {}{quantity}{also}", action.kind.title()))));
         }
         if attention.actions.len() > 3 {
