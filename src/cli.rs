@@ -11,10 +11,12 @@ mod doctor;
 mod entry_view;
 mod event;
 mod input;
+mod keymap;
 mod log;
 mod rebuild;
 mod record;
 mod room;
+mod screen;
 mod skip;
 
 use std::process::ExitCode;
@@ -42,6 +44,8 @@ pub(crate) use bad_input;
 struct Cli {
     #[command(flatten)]
     global: GlobalArgs,
+    #[command(flatten)]
+    keymap: keymap::KeymapOption,
     #[command(subcommand)]
     command: Option<Command>,
 }
@@ -76,6 +80,10 @@ enum Command {
     Calc(calc::CalcArgs),
     /// Check a facility file: list every error with its line, or summarise the room.
     CheckRoom(check_room::CheckRoomArgs),
+    /// Check a keymap file, or list the keys in use.
+    Keymap(keymap::KeymapArgs),
+    /// Open the screen on a sample room with a generated history, in a throw-away store.
+    Demo(screen::DemoArgs),
     /// Save a reading of a tank or a system; prints its id, NH3 and band.
     Record(record::RecordArgs),
     /// Save something done to a tank or a system (water change, medication, ...).
@@ -147,6 +155,8 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
     match cli.command {
         Some(Command::Calc(args)) => calc::run(&args, &cli.global),
         Some(Command::CheckRoom(args)) => check_room::run(&args),
+        Some(Command::Keymap(args)) => keymap::run(&cli.global, &cli.keymap, &args),
+        Some(Command::Demo(args)) => screen::demo(&cli.global, &cli.keymap, &args),
         Some(Command::Record(args)) => record::run(&cli.global, &args),
         Some(Command::Event(args)) => event::run(&cli.global, &args),
         Some(Command::Correct(args)) => correct::run(&cli.global, &args),
@@ -154,11 +164,7 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         Some(Command::Skip(args)) => skip::run(&cli.global, &args),
         Some(Command::Doctor(args)) => doctor::run(&cli.global, &args),
         Some(Command::Rebuild(args)) => rebuild::run(&cli.global, &args),
-        None => {
-            use clap::CommandFactory;
-            Cli::command().print_help()?;
-            Ok(ExitCode::SUCCESS)
-        }
+        None => screen::open(&cli.global, &cli.keymap),
     }
 }
 

@@ -10,6 +10,7 @@
 //!   pure: inputs in, assessment out;
 //! - [`store`]: durable storage of records (journal + sled);
 //! - [`timeline`]: a tank's stored history, ready for the assessment;
+//! - [`tui`]: the terminal screen (keymaps, pure state and update, views);
 //!
 //! The command line (`src/cli.rs`, in the binary) is the only place that
 //! prints, and the only place that uses `anyhow`.
@@ -17,12 +18,14 @@
 //! Everything tankwalk advises is guidance: see [`CAUTION`].
 
 pub mod core;
+pub mod demo;
 pub mod model;
 pub mod numfmt;
 pub mod paths;
 pub mod rules;
 pub mod store;
 pub mod timeline;
+pub mod tui;
 
 /// The caution shown with every assessment.
 pub const CAUTION: &str = "Guidance only, not veterinary advice. Local rules and licensed practice govern \
