@@ -24,6 +24,7 @@ pub mod numfmt;
 pub mod paths;
 pub mod rules;
 pub mod store;
+pub mod text;
 pub mod timeline;
 pub mod tui;
 
