@@ -122,6 +122,7 @@ pub fn open_store(global: &GlobalArgs) -> anyhow::Result<tankwalk::store::SledSt
 
 /// Parses the command line, runs it and maps the outcome to an exit code.
 pub fn main() -> ExitCode {
+    say_what_a_panic_means();
     if let Some(message) = non_utf8_argument(std::env::args_os()) {
         eprintln!("tankwalk: {message}");
         return ExitCode::from(2);
@@ -143,6 +144,20 @@ pub fn main() -> ExitCode {
             ExitCode::from(if err.downcast_ref::<BadInput>().is_some() { 2 } else { 1 })
         }
     }
+}
+
+/// After the usual panic message, says what it means for the records. The
+/// screen's own hook (from `ratatui::try_init`, installed later) restores the
+/// terminal first and then calls this one.
+fn say_what_a_panic_means() {
+    let default = std::panic::take_hook();
+    std::panic::set_hook(Box::new(move |info| {
+        default(info);
+        eprintln!(
+            "tankwalk: this is a bug in tankwalk; please report the message above. Every record that \
+             tankwalk said was saved is on disk (`tankwalk doctor` checks); an entry not yet saved was lost."
+        );
+    }));
 }
 
 /// Names the first argument that is not UTF-8 text, by its option: clap

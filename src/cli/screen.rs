@@ -86,10 +86,22 @@ struct StoreRecords {
     store: SledStore,
     exports: PathBuf,
     saved: usize,
+    saves: usize,
+    /// Fault injection for the tests: panic at this save (see [`PANIC_ON_SAVE`]).
+    panic_on_save: Option<usize>,
 }
+
+/// Makes the screen panic at the Nth save (1 = the first), while the terminal
+/// is in raw mode on the alternate screen: the tests use it to check that a
+/// panic leaves the terminal usable and loses no earlier save.
+pub const PANIC_ON_SAVE: &str = "TANKWALK_TEST_PANIC_ON_SAVE";
 
 impl Records for StoreRecords {
     fn save(&mut self, records: &[Record]) -> Result<(), String> {
+        self.saves += 1;
+        if self.panic_on_save == Some(self.saves) {
+            panic!("fault injected by {PANIC_ON_SAVE} at save {}", self.saves);
+        }
         self.store.append(records).map(|_| self.saved += records.len()).map_err(|e| e.to_string())
     }
 
@@ -151,7 +163,8 @@ fn run_screen(
     let session = SessionInfo { operator: operator(), device: store.device(), id_seed: Ulid::generate().random() };
     let mut app = App::new(facility, records, session, started);
     app.colour = terminal::colour_wanted();
-    let mut records = StoreRecords { store, exports: data_dir.join("exports"), saved: 0 };
+    let panic_on_save = std::env::var(PANIC_ON_SAVE).ok().and_then(|n| n.trim().parse().ok());
+    let mut records = StoreRecords { store, exports: data_dir.join("exports"), saved: 0, saves: 0, panic_on_save };
     run::run(&mut app, keymap, &mut records, &now)?;
     Ok(records.saved)
 }
