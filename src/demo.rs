@@ -142,6 +142,43 @@ fn waters(facility: &Facility, rng: &mut Rng) -> Vec<Water> {
     waters
 }
 
+/// A generated room for trying tankwalk at scale (benchmarks, load tests):
+/// `racks` systems of 20 guppy tanks each (`SYS-00`, tanks `S00-00` ...) and
+/// `tubs` standalone tubs (`TUB-000` ...). The species figures are the
+/// demo's, not advice.
+pub fn generated_room(racks: usize, tubs: usize) -> Facility {
+    use std::fmt::Write as _;
+    let mut toml = String::from(
+        "[room]\nname = \"Generated hall\"\nelevation_m = 0\nkit_basis = \"n\"\n\n\
+         [[species]]\nkey = \"guppy\"\nname = \"Guppy (Poecilia reticulata)\"\nwater_type = \"fresh\"\n\
+         temp_c = [22, 28]\nph = [7.0, 8.5]\nsalt_tolerance_g_l = 10\n\n",
+    );
+    let mut tanks = String::new();
+    for s in 0..racks {
+        let ids: Vec<String> = (0..20).map(|t| format!("\"S{s:02}-{t:02}\"")).collect();
+        let _ = writeln!(
+            toml,
+            "[[systems]]\nid = \"SYS-{s:02}\"\nname = \"Rack {s}\"\nvolume_l = 2600\nwater_type = \"fresh\"\ntanks = [{}]\n",
+            ids.join(", ")
+        );
+        for t in 0..20 {
+            let _ = writeln!(
+                tanks,
+                "[[tanks]]\nid = \"S{s:02}-{t:02}\"\nvolume_l = 120\nspecies = \"guppy\"\nstock_count = 50\nset_up = 2024-01-01\n"
+            );
+        }
+    }
+    for t in 0..tubs {
+        let _ = writeln!(
+            tanks,
+            "[[tanks]]\nid = \"TUB-{t:03}\"\nvolume_l = 80\nspecies = \"guppy\"\nstock_count = 20\nset_up = 2024-01-01\n"
+        );
+    }
+    toml.push_str(&tanks);
+    // Racks and tubs are numbered within the id rules, so the file is valid by construction.
+    Facility::parse(&toml, std::path::Path::new("generated-hall.toml")).expect("the generated room is valid")
+}
+
 /// Builds `days` days of morning rounds ending the day before `end` (so the
 /// round of `end`'s day is still to walk), on `device`, from `seed`.
 pub fn history(facility: &Facility, device: DeviceId, end: DateTime<FixedOffset>, days: u32, seed: u64) -> Vec<Record> {

@@ -10,10 +10,10 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use anyhow::Context as _;
-use chrono::{DateTime, Duration, FixedOffset};
+use chrono::{DateTime, FixedOffset};
 use clap::{Args, ValueEnum};
 use tankwalk::model::facility::Facility;
-use tankwalk::model::record::{Record, RecordBody};
+use tankwalk::model::record::Record;
 use tankwalk::store::{SledStore, Store};
 use tankwalk::tui::run::{self, Records};
 use tankwalk::tui::state::{App, SessionInfo};
@@ -22,9 +22,6 @@ use ulid::Ulid;
 
 use super::keymap::{self, KeymapOption};
 use super::{GlobalArgs, bad_input};
-
-/// How far back the screen loads records: the longest chart period.
-pub const LOADED_DAYS: i64 = 90;
 
 /// The bundled sample rooms, embedded so the demo runs from anywhere.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -138,20 +135,6 @@ fn export_json_lines(store: &SledStore, dir: &Path) -> anyhow::Result<String> {
     Ok(format!("{} ({count} records)", path.display()))
 }
 
-/// The records the screen shows: the last [`LOADED_DAYS`] days, and every
-/// correction (a correction of an older record is simply not applied).
-fn load_records(store: &SledStore, now: DateTime<FixedOffset>) -> anyhow::Result<Vec<Record>> {
-    let since = now - Duration::days(LOADED_DAYS);
-    let mut records = Vec::new();
-    for record in store.all()? {
-        let record = record?;
-        if record.taken_at >= since || matches!(record.body, RecordBody::Correction(_)) {
-            records.push(record);
-        }
-    }
-    Ok(records)
-}
-
 fn run_screen(
     facility: Facility,
     store: SledStore,
@@ -159,7 +142,7 @@ fn run_screen(
     keymap: &tankwalk::tui::Keymap,
 ) -> anyhow::Result<usize> {
     let started = now();
-    let records = load_records(&store, started)?;
+    let records = run::records_to_show(&store, started)?;
     let session = SessionInfo { operator: operator(), device: store.device(), id_seed: Ulid::generate().random() };
     let mut app = App::new(facility, records, session, started);
     app.colour = terminal::colour_wanted();
