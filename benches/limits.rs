@@ -210,6 +210,29 @@ fn against_the_limits(c: &mut Criterion) {
                 total
             })
         });
+        // The floor of opening: sled alone opening the same database with the
+        // same settings (no lock, no journal, no check of the two against each other).
+        group.bench_function(name("open, sled alone (floor)"), |b| {
+            b.iter_custom(|iters| {
+                let mut total = Duration::ZERO;
+                for _ in 0..iters {
+                    let started = Instant::now();
+                    let db = sled::Config::new()
+                        .path(p.dir.join(tankwalk::store::sled_store::DB_DIR))
+                        .flush_every_ms(None)
+                        .cache_capacity(64 * 1024 * 1024)
+                        .open()
+                        .unwrap();
+                    for tree in ["records", "by_target", "by_time", "corrections", "meta"] {
+                        black_box(db.open_tree(tree).unwrap());
+                    }
+                    total += note("open sled", n, started.elapsed());
+                    drop(db);
+                    settle();
+                }
+                total
+            })
+        });
         group.bench_function(name("open, SQLite"), |b| {
             b.iter_custom(|iters| {
                 let mut total = Duration::ZERO;
@@ -361,13 +384,14 @@ fn fmt(d: Duration) -> String {
 }
 
 fn summary(prepared: &[Prepared]) {
-    let rows: [(&str, &str, &str); 6] = [
-        ("open the store", "open", "open sqlite"),
-        ("start to first frame", "first frame", "first frame sqlite"),
+    let rows: [(&str, &str, &str); 7] = [
+        ("open the store, beside SQLite", "open", "open sqlite"),
+        ("open the store, beside sled's own open", "open", "open sled"),
+        ("start to first frame, beside SQLite", "first frame", "first frame sqlite"),
         ("start to first frame, beside the same frame from memory", "first frame", "first frame floor"),
-        ("history of one tank, 90 days", "history", "history sqlite"),
-        ("board frame, 1,000 tanks, 160x48", "board frame", "text frame"),
-        ("walk frame, 160x48", "walk frame", "text frame"),
+        ("history of one tank, 90 days, beside SQLite", "history", "history sqlite"),
+        ("board frame, 1,000 tanks, 160x48, beside plain text", "board frame", "text frame"),
+        ("walk frame, 160x48, beside plain text", "walk frame", "text frame"),
     ];
     println!("\nagainst the limits (medians of every timed operation):");
     println!("{:<58} {:>10} {:>11} {:>11} {:>7}", "", "readings", "tankwalk", "peer/floor", "ratio");
