@@ -13,8 +13,8 @@ use anyhow::Context as _;
 use chrono::{DateTime, Duration, FixedOffset};
 use clap::{Args, ValueEnum};
 use tankwalk::model::facility::Facility;
-use tankwalk::model::record::{Record, RecordBody};
-use tankwalk::store::{SledStore, Store};
+use tankwalk::model::record::Record;
+use tankwalk::store::{SledStore, Store, TimeRange};
 use tankwalk::tui::run::{self, Records};
 use tankwalk::tui::state::{App, SessionInfo};
 use tankwalk::tui::terminal;
@@ -126,18 +126,12 @@ fn export_json_lines(store: &SledStore, dir: &Path) -> anyhow::Result<String> {
     Ok(format!("{} ({count} records)", path.display()))
 }
 
-/// The records the screen shows: the last [`LOADED_DAYS`] days, and every
-/// correction (a correction of an older record is simply not applied).
+/// The records the screen shows: those of the last [`LOADED_DAYS`] days (a
+/// correction is filed at the time of the record it corrects, so it comes
+/// with it), read through the store's time index.
 fn load_records(store: &SledStore, now: DateTime<FixedOffset>) -> anyhow::Result<Vec<Record>> {
-    let since = now - Duration::days(LOADED_DAYS);
-    let mut records = Vec::new();
-    for record in store.all()? {
-        let record = record?;
-        if record.taken_at >= since || matches!(record.body, RecordBody::Correction(_)) {
-            records.push(record);
-        }
-    }
-    Ok(records)
+    let since = (now - Duration::days(LOADED_DAYS)).with_timezone(&chrono::Utc);
+    Ok(store.history(&[], &TimeRange::new(Some(since), None))?)
 }
 
 fn run_screen(
