@@ -17,6 +17,7 @@ mod rebuild;
 mod record;
 mod room;
 mod screen;
+mod skip;
 
 use std::process::ExitCode;
 
@@ -92,6 +93,8 @@ enum Command {
     Correct(correct::CorrectArgs),
     /// History, newest first, with NH3 and band computed on the fly.
     Log(log::LogArgs),
+    /// Note that a tank or system was passed over on a round, and why.
+    Skip(skip::SkipArgs),
     /// Check that the record database and its journal agree.
     Doctor(doctor::DoctorArgs),
     /// Recreate the record database from the journal (nothing is deleted).
@@ -159,6 +162,7 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         Some(Command::Event(args)) => event::run(&cli.global, &args),
         Some(Command::Correct(args)) => correct::run(&cli.global, &args),
         Some(Command::Log(args)) => log::run(&cli.global, &args),
+        Some(Command::Skip(args)) => skip::run(&cli.global, &args),
         Some(Command::Doctor(args)) => doctor::run(&cli.global, &args),
         Some(Command::Rebuild(args)) => rebuild::run(&cli.global, &args),
         None => screen::open(&cli.global, &cli.keymap),

@@ -6,7 +6,10 @@
 //! - [`model`]: the facility (room, species profiles, systems, tanks), parsed
 //!   and validated from its TOML file, and the records of readings, events and
 //!   corrections;
+//! - [`rules`]: the assessment (band, latent risk, trend, biofilter, actions),
+//!   pure: inputs in, assessment out;
 //! - [`store`]: durable storage of records (journal + sled);
+//! - [`timeline`]: a tank's stored history, ready for the assessment;
 //! - [`tui`]: the terminal screen (keymaps, pure state and update, views);
 //!
 //! The command line (`src/cli.rs`, in the binary) is the only place that
@@ -21,6 +24,7 @@ pub mod numfmt;
 pub mod paths;
 pub mod rules;
 pub mod store;
+pub mod timeline;
 pub mod tui;
 
 /// The caution shown with every assessment.

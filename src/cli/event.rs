@@ -31,7 +31,9 @@ pub struct EventArgs {
 
 pub fn run(global: &GlobalArgs, args: &EventArgs) -> Result<ExitCode> {
     // Everything is parsed and checked before the store is opened.
-    let place = input::locate(global.room.as_deref(), args.place.tank.as_deref(), args.place.system.as_deref())?;
+    let room = super::room::resolve_room_optional(global)?;
+    let facility = room.as_ref().map(|(_, f)| f);
+    let place = input::locate(facility, args.place.tank.as_deref(), args.place.system.as_deref())?;
     let operator = args.who.operator()?;
     let taken_at = args.who.taken_at(input::now_local())?;
     let kind = args.kind.to_kind()?;
@@ -52,6 +54,6 @@ pub fn run(global: &GlobalArgs, args: &EventArgs) -> Result<ExitCode> {
     drop(store);
 
     let entry = Entry { original: record, corrections: Vec::new() };
-    super::record::print_saved(&entry, place.system.clone(), Vec::new(), args.json)?;
+    super::record::print_saved(&entry, facility, None, Vec::new(), args.json)?;
     Ok(ExitCode::SUCCESS)
 }

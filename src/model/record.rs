@@ -199,15 +199,18 @@ pub enum RecordBody {
     Event(Event),
     /// A replacement for (or withdrawal of) an earlier record.
     Correction(Correction),
+    /// A tank or system passed over on a round, and why.
+    Skip(Skip),
 }
 
 impl RecordBody {
-    /// `"reading"`, `"event"` or `"correction"`.
+    /// `"reading"`, `"event"`, `"correction"` or `"skip"`.
     pub fn kind_name(&self) -> &'static str {
         match self {
             RecordBody::Reading(_) => "reading",
             RecordBody::Event(_) => "event",
             RecordBody::Correction(_) => "correction",
+            RecordBody::Skip(_) => "skip",
         }
     }
 
@@ -218,6 +221,7 @@ impl RecordBody {
             RecordBody::Reading(r) => Some(&r.target),
             RecordBody::Event(e) => Some(&e.target),
             RecordBody::Correction(c) => c.replacement.as_deref().and_then(RecordBody::target),
+            RecordBody::Skip(s) => Some(&s.target),
         }
     }
 
@@ -245,13 +249,55 @@ impl RecordBody {
         }
     }
 
+    /// The free text a person wrote: a reading's or event's note, a skip's reason.
+    pub fn note(&self) -> Option<&str> {
+        match self {
+            RecordBody::Reading(r) => r.note.as_deref(),
+            RecordBody::Event(e) => e.note.as_deref(),
+            RecordBody::Correction(_) => None,
+            RecordBody::Skip(s) => Some(&s.reason),
+        }
+    }
+
+    /// The skip, when this is one.
+    pub fn as_skip(&self) -> Option<&Skip> {
+        match self {
+            RecordBody::Skip(s) => Some(s),
+            _ => None,
+        }
+    }
+
     /// Checks every field; returns the accepted-but-unusual values as warnings.
     pub fn check(&self) -> Result<Vec<FieldWarning>, RecordError> {
         match self {
             RecordBody::Reading(r) => r.check(),
             RecordBody::Event(e) => e.check().map(|()| Vec::new()),
             RecordBody::Correction(c) => c.check(),
+            RecordBody::Skip(s) => s.check().map(|()| Vec::new()),
         }
+    }
+}
+
+/// A tank or system passed over on a round: the round report lists it with
+/// its reason instead of as "not reached".
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Skip {
+    /// The tank or system skipped.
+    pub target: Target,
+    /// Why (tank empty, being moved, no access, kit ran out...).
+    pub reason: String,
+}
+
+impl Skip {
+    /// Checks the target and the reason.
+    pub fn check(&self) -> Result<(), RecordError> {
+        self.target.check()?;
+        check_text(Field::Reason, &self.reason, MAX_TEXT_CHARS, true)?;
+        if self.reason.trim().is_empty() {
+            return Err(RecordError::invalid(Field::Reason, "a skip needs a reason"));
+        }
+        Ok(())
     }
 }
 
@@ -1256,6 +1302,7 @@ mod tests {
         for kind in kinds {
             bodies.push(RecordBody::Event(Event { target: Target::System("RACK-B".into()), kind, note: None }));
         }
+        bodies.push(RecordBody::Skip(Skip { target: tank(), reason: "tank emptied for moving".into() }));
         bodies.push(RecordBody::Correction(Correction {
             supersedes: Ulid::from_string("01JEX5V3QK8T0W9Y2Z4A6B8C0E").unwrap(),
             replacement: Some(Box::new(RecordBody::Reading(Reading::new(tank())).with_ph(7.4))),
@@ -1530,5 +1577,15 @@ mod tests {
         let withdraw =
             RecordBody::Correction(Correction { supersedes: Ulid::nil(), replacement: None, reason: "x".into() });
         assert!(withdraw.target().is_none());
+    }
+
+    #[test]
+    fn a_skip_needs_a_reason() {
+        let skip = Skip { target: Target::Tank("B2-07".into()), reason: "  ".into() };
+        assert!(skip.check().unwrap_err().to_string().contains("a skip needs a reason"));
+        let body = RecordBody::Skip(Skip { target: Target::Tank("B2-07".into()), reason: "no access".into() });
+        assert_eq!(body.kind_name(), "skip");
+        assert_eq!(body.note(), Some("no access"));
+        assert_eq!(body.target(), Some(&Target::Tank("B2-07".into())));
     }
 }

@@ -329,7 +329,14 @@ pub fn assess(inputs: &Inputs<'_>) -> Assessment {
     let band = measured_band.map(|b| if raised_by.is_empty() { b } else { b.raised() });
 
     let (source, source_ph, chloramine) = source_water(inputs);
-    let latent = sample.map(|s| latent(&s, &edges, source_ph));
+    // Signs in the fish raise the latent band too: they are about the fish, not the pH.
+    let latent = sample.map(|s| {
+        let mut l = latent(&s, &edges, source_ph);
+        if !raised_by.is_empty() {
+            l.band = l.band.raised();
+        }
+        l
+    });
 
     // Trends over this reading and the earlier ones.
     let mut nh3_points = Vec::new();

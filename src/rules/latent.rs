@@ -38,7 +38,8 @@ pub struct Latent {
     pub nh3_n_mg_l: f64,
     /// NH3 at that pH, mg/L.
     pub nh3_mg_l: f64,
-    /// Band at that pH (before any escalation for signs in the fish).
+    /// Band at that pH (the assessment raises it by one, like the band, when
+    /// the fish show signs).
     pub band: Band,
 }
 

@@ -104,7 +104,7 @@ impl History {
                     }
                 }
             }
-            RecordBody::Reading(_) | RecordBody::Event(_) => {
+            RecordBody::Reading(_) | RecordBody::Event(_) | RecordBody::Skip(_) => {
                 let entry = Entry {
                     id: record.id,
                     head: record.id,
