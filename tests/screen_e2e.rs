@@ -1,6 +1,7 @@
 //! End to end in a real terminal: the real binary in tmux on a sample room
 //! with a temporary data folder walks six tubs (five read, one skipped) and
-//! quits; `tankwalk log --json` must then hold exactly those five readings.
+//! quits; `tankwalk log --json` must then hold exactly those five readings
+//! and the skip with its reason.
 //!
 //! tmux must be installed (`.ci/run` installs it).
 
@@ -107,7 +108,13 @@ fn walk_five_tubs_skip_one_quit_and_the_log_has_exactly_those_readings() {
         .unwrap();
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
     let log: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
-    let rows = log.as_array().unwrap();
+    let all = log.as_array().unwrap();
+    // The skip is stored too, with its reason.
+    let skips: Vec<_> = all.iter().filter(|r| r["kind"] == "skip").collect();
+    assert_eq!(skips.len(), 1, "{log:#}");
+    assert_eq!(skips[0]["tank"], "T-03");
+    assert_eq!(skips[0]["note"], "tank empty or being set up", "{:#}", skips[0]);
+    let rows: Vec<_> = all.iter().filter(|r| r["kind"] != "skip").collect();
     assert_eq!(rows.len(), 5, "{log:#}");
     let mut tanks: Vec<&str> = rows.iter().map(|r| r["tank"].as_str().unwrap()).collect();
     tanks.sort_unstable();

@@ -267,8 +267,13 @@ fn skipping_asks_a_reason_and_goes_on() {
     assert_eq!(w.status(), (StatusKind::Info, "Skipped T-1: fish being moved or treated".to_string()));
     let t1 = w.app.tank_index("T-1").unwrap();
     assert_eq!(w.app.statuses[t1].due, Due::Skipped);
-    assert_eq!(w.app.skips[&t1], "fish being moved or treated");
-    assert!(w.saved.is_empty());
+    // The skip is a record, saved like a reading.
+    assert_eq!(w.saved.len(), 1);
+    let RecordBody::Skip(skip) = &w.saved[0].body else { panic!("a skip record") };
+    assert_eq!(
+        (skip.target.clone(), skip.reason.as_str()),
+        (Target::Tank("T-1".into()), "fish being moved or treated")
+    );
     // A typed reason.
     w.keys("x end enter");
     assert!(matches!(w.app.modal, Some(Modal::Prompt(_))));
@@ -276,8 +281,17 @@ fn skipping_asks_a_reason_and_goes_on() {
         update(&mut w.app, &w.keymap, Input::Key(Key::char(c)), now());
     }
     w.keys("enter");
+    let RecordBody::Skip(skip) = &w.saved[1].body else { panic!("a skip record") };
+    assert_eq!(skip.reason, "heater failed");
+    // Reopened from the saved records (a restart mid-round), both tanks are still skipped.
+    let reopened = App::new(
+        w.app.facility.clone(),
+        w.saved.clone(),
+        SessionInfo { operator: "Ines Okafor".into(), device: device(), id_seed: 8 },
+        now(),
+    );
     let t2 = w.app.tank_index("T-2").unwrap();
-    assert_eq!(w.app.skips[&t2], "heater failed");
+    assert_eq!((reopened.statuses[t1].due, reopened.statuses[t2].due), (Due::Skipped, Due::Skipped));
 }
 
 #[test]

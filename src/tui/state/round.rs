@@ -15,7 +15,7 @@ use super::history::{Entry, History};
 pub enum Due {
     /// Read this round.
     Done,
-    /// Skipped this round, with a reason.
+    /// Skipped this round, with a reason (a skip record).
     Skipped,
     /// Not read this round, but its last reading is recent enough.
     NotDue,
@@ -116,6 +116,14 @@ pub fn system_this_round<'a>(history: &'a History, tank: &Tank, start: DateTime<
     history.of_target(&target).iter().rev().find(|e| e.taken_at >= start && e.reading().is_some())
 }
 
+/// Why the tank (or its system) was skipped this round, the newest skip, when it was.
+pub fn skip_this_round<'a>(history: &'a History, tank: &Tank, start: DateTime<FixedOffset>) -> Option<&'a str> {
+    history.of_tank(tank).into_iter().rev().take_while(|e| e.taken_at >= start).find_map(|e| match &e.body {
+        crate::model::record::RecordBody::Skip(skip) => Some(skip.reason.as_str()),
+        _ => None,
+    })
+}
+
 /// Observations recorded for the tank this round.
 pub fn observations_this_round(history: &History, tank: &Tank, start: DateTime<FixedOffset>) -> Observations {
     own_this_round(history, tank, start).and_then(Entry::reading).map(|r: &Reading| r.observations).unwrap_or_default()
@@ -128,8 +136,8 @@ pub fn tank_status(
     tank: &Tank,
     start: DateTime<FixedOffset>,
     now: DateTime<FixedOffset>,
-    skipped: bool,
 ) -> TankStatus {
+    let skipped = skip_this_round(history, tank, start).is_some();
     let own = own_this_round(history, tank, start);
     let system = system_this_round(history, tank, start);
     let observations = observations_this_round(history, tank, start);

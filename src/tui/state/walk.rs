@@ -16,8 +16,8 @@ use crate::core::sample::WaterSample;
 use crate::core::units::{self, AmmoniaBasis, NitrogenIonBasis};
 use crate::model::facility::{Facility, Tank, TemperatureUnit};
 use crate::model::record::{
-    Correction, Measurements, NitrogenReading, Observations, Reading, Record, RecordBody, Sign, Target, Temperature,
-    TotalAmmonia,
+    Correction, Measurements, NitrogenReading, Observations, Reading, Record, RecordBody, Sign, Skip, Target,
+    Temperature, TotalAmmonia,
 };
 use crate::rules::assess::Assessment;
 use crate::rules::trend::{Trend, TrendWindow, trend};
@@ -569,18 +569,45 @@ pub fn skip_reason_picked(app: &mut App, index: usize) -> Vec<Effect> {
     skip(app, SKIP_REASONS.get(index).copied().unwrap_or("skipped").to_string())
 }
 
-/// Skips the walk's tank with `reason` and goes on.
+/// Skips the walk's tank with `reason`: a skip record, saved like a reading,
+/// so a restart mid-round and the round report both know it.
 pub fn skip(app: &mut App, reason: String) -> Vec<Effect> {
     let Some(tank) = app.walk.as_ref().map(|w| w.entry.tank) else { return Vec::new() };
-    let label = app.tank(tank).id.as_str().to_string();
-    app.skips.insert(tank, reason.clone());
-    app.refresh_statuses();
-    app.status = None;
-    advance(app);
-    if app.status.is_none() {
-        app.say(StatusKind::Info, format!("Skipped {label}: {reason}"));
+    let target = round::tank_target(app.tank(tank));
+    let body = RecordBody::Skip(Skip { target, reason });
+    if let Err(err) = body.check() {
+        app.say(StatusKind::Error, format!("Not skipped: {err}"));
+        return Vec::new();
     }
-    Vec::new()
+    let record = app.new_record(body);
+    app.saving = Some(SaveFor::Skip { tank });
+    vec![Effect::Save(vec![record])]
+}
+
+/// The store answered the save of a skip.
+pub fn skip_saved(app: &mut App, tank: usize, result: Result<Vec<Record>, String>) {
+    let label = app.tank(tank).id.as_str().to_string();
+    match result {
+        Ok(records) => {
+            let reason = records
+                .iter()
+                .find_map(|r| match &r.body {
+                    RecordBody::Skip(s) => Some(s.reason.clone()),
+                    _ => None,
+                })
+                .unwrap_or_default();
+            for record in records {
+                app.history.add(record);
+            }
+            app.refresh_statuses();
+            app.status = None;
+            advance(app);
+            if app.status.is_none() {
+                app.say(StatusKind::Info, format!("Skipped {label}: {reason}"));
+            }
+        }
+        Err(why) => app.say(StatusKind::Error, format!("Skip of {label} NOT saved: {why}")),
+    }
 }
 
 /// The note prompt was answered.
@@ -752,7 +779,6 @@ pub fn save(app: &mut App) -> Vec<Effect> {
             if let Some(walk) = &mut app.walk {
                 walk.save_draft = None;
             }
-            app.skips.remove(&tank);
             app.refresh_statuses();
             app.status = None;
             advance(app);
@@ -807,7 +833,6 @@ pub fn saved(app: &mut App, tank: usize, result: Result<Vec<Record>, String>) {
             if let Some(walk) = &mut app.walk {
                 walk.save_draft = None;
             }
-            app.skips.remove(&tank);
             app.refresh_statuses();
             let status = &app.statuses[tank];
             let band = status.band.map(|b| format!(" ({} {})", b.glyph(), b.name())).unwrap_or_default();

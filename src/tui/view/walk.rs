@@ -221,12 +221,7 @@ fn render_verdict(a: &Assessment, theme: Theme, keymap: &Keymap, frame: &mut Fra
     if !a.actions.is_empty() {
         lines.push(Line::styled("Do now:", theme.heading()));
         for (i, action) in a.actions.iter().enumerate() {
-            let quantity = match (action.quantity, action.unit) {
-                (Some(q), Some(u)) => format!(" {} {u}", super::amount(q)),
-                _ => String::new(),
-            };
-            let also = action.also.map_or(String::new(), |q| format!(" ({} {})", super::amount(q.quantity), q.unit));
-            lines.push(Line::raw(format!("{}. {}{quantity}{also}", i + 1, action.kind.title())));
+            lines.push(Line::raw(format!("{}. {}", i + 1, super::action_text(action))));
             if wide {
                 lines.push(Line::styled(format!("   {}", action.reason), theme.dim()));
             }
