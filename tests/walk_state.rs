@@ -436,3 +436,18 @@ fn routine_tank_needs_at_most_five_keys_besides_the_number_characters() {
     assert_eq!(w.saved.len(), 1);
     assert!(non_digit <= 5, "{non_digit}");
 }
+
+#[test]
+fn a_new_round_begins_at_midnight_while_the_screen_is_open() {
+    let mut w = Walk::new();
+    w.keys("w pagedown pagedown pagedown 25 enter 7.2 enter 0.3 s");
+    let t1 = w.app.tank_index("T-1").unwrap();
+    assert_eq!(w.app.statuses[t1].due, Due::Done);
+    // Time passes past local midnight: this morning's reading no longer counts for the new round.
+    let tomorrow = now() + Duration::hours(17);
+    update(&mut w.app, &w.keymap, Input::Tick, tomorrow);
+    assert_eq!(w.app.round_start, FixedOffset::east_opt(3600).unwrap().with_ymd_and_hms(2026, 12, 2, 0, 0, 0).unwrap());
+    assert_eq!(w.app.statuses[t1].due, Due::NotDue);
+    update(&mut w.app, &w.keymap, Input::Tick, now() + Duration::hours(24));
+    assert_eq!(w.app.statuses[t1].due, Due::Due);
+}
