@@ -4,10 +4,11 @@
 
 use chrono::{DateTime, Duration, FixedOffset, TimeZone};
 use tankwalk::core::band::Band;
+use tankwalk::core::units::AmmoniaBasis;
 use tankwalk::model::facility::Facility;
 use tankwalk::model::record::{DeviceId, Measurements, Reading, Record, RecordBody, Target, Temperature, TotalAmmonia};
 use tankwalk::tui::keymap::{Key, Keymap};
-use tankwalk::tui::state::field::Provenance;
+use tankwalk::tui::state::field::{FieldKind, Provenance};
 use tankwalk::tui::state::modal::Modal;
 use tankwalk::tui::state::round::Due;
 use tankwalk::tui::state::{App, Effect, Input, Screen, SessionInfo, StatusKind, update};
@@ -108,7 +109,11 @@ struct Walk {
 
 impl Walk {
     fn new() -> Walk {
-        let facility = Facility::parse(ROOM, std::path::Path::new("test-bench.toml")).unwrap();
+        Walk::in_room(ROOM)
+    }
+
+    fn in_room(room: &str) -> Walk {
+        let facility = Facility::parse(room, std::path::Path::new("test-bench.toml")).unwrap();
         let history = vec![
             yesterday_reading(Target::System("RACK".into()), 7.5, 0.2),
             yesterday_reading(Target::Tank("T-1".into()), 7.4, 0.3),
@@ -450,4 +455,49 @@ fn a_new_round_begins_at_midnight_while_the_screen_is_open() {
     assert_eq!(w.app.statuses[t1].due, Due::NotDue);
     update(&mut w.app, &w.keymap, Input::Tick, now() + Duration::hours(24));
     assert_eq!(w.app.statuses[t1].due, Due::Due);
+}
+
+#[test]
+fn the_fields_come_in_the_rooms_order() {
+    // This bench reads pH first (the pen shows temperature beside it), no nitrite, and
+    // offers alkalinity and nitrate below.
+    let room = ROOM.replace(
+        "kit_basis = \"n\"\n",
+        "kit_basis = \"n\"\nreading_fields = [\"ph\", \"temperature\", \"total-ammonia\"]\n\
+         optional_fields = [\"alkalinity\", \"nitrate\"]\n",
+    );
+    let mut w = Walk::in_room(&room);
+    w.keys("w");
+    assert_eq!(w.tank(), "R-1");
+    let entry = &w.app.walk.as_ref().unwrap().entry;
+    let kinds: Vec<FieldKind> = entry.fields.iter().map(|f| f.kind).collect();
+    assert_eq!(
+        kinds,
+        [
+            FieldKind::Ph,
+            FieldKind::TemperatureC,
+            FieldKind::TotalAmmonia(AmmoniaBasis::N),
+            FieldKind::Alkalinity,
+            FieldKind::Nitrate
+        ]
+    );
+    assert_eq!(entry.routine, 3);
+    // The last reading's values sit beside their own fields.
+    assert_eq!(entry.previous.as_ref().unwrap().values[..3], [Some(7.5), Some(25.0), Some(0.2)]);
+    // The keep key takes yesterday's pH into the first field.
+    w.keys("space");
+    assert_eq!(w.texts()[0], "7.5");
+    assert_eq!(w.app.walk.as_ref().unwrap().entry.focus, 1);
+    // Typed in that order, Enter between, an optional value below, one key to save.
+    w.keys("delete shift-tab delete 7.6 enter 25.5 enter 0.4 enter 120 s");
+    assert_eq!(w.saved.len(), 1);
+    let m = &reading_of(&w.saved[0]).measurements;
+    assert_eq!(m.ph, Some(7.6));
+    assert_eq!(m.temp_c(), Some(25.5));
+    assert_eq!(m.tan_n_mg_l(), Some(0.4));
+    assert_eq!(m.alkalinity_mg_l_caco3(), Some(120.0));
+    assert_eq!((m.nitrite, m.nitrate), (None, None));
+    // The next tank carries the system's values into the same places.
+    assert_eq!(w.tank(), "R-2");
+    assert_eq!(w.texts(), ["7.6", "25.5", "0.4", "120", ""]);
 }
