@@ -4,9 +4,11 @@
 
 use chrono::{DateTime, Duration, FixedOffset, TimeZone};
 use tankwalk::core::band::Band;
-use tankwalk::core::units::AmmoniaBasis;
+use tankwalk::core::units::{AmmoniaBasis, NitrogenIonBasis};
 use tankwalk::model::facility::Facility;
-use tankwalk::model::record::{DeviceId, Measurements, Reading, Record, RecordBody, Target, Temperature, TotalAmmonia};
+use tankwalk::model::record::{
+    DeviceId, Measurements, NitrogenReading, Reading, Record, RecordBody, Target, Temperature, TotalAmmonia,
+};
 use tankwalk::tui::keymap::{Key, Keymap};
 use tankwalk::tui::state::field::{FieldKind, Provenance};
 use tankwalk::tui::state::modal::Modal;
@@ -113,11 +115,17 @@ impl Walk {
     }
 
     fn in_room(room: &str) -> Walk {
+        Walk::with_records(room, Vec::new())
+    }
+
+    /// In `room`, with yesterday's readings and `records` stored.
+    fn with_records(room: &str, records: Vec<Record>) -> Walk {
         let facility = Facility::parse(room, std::path::Path::new("test-bench.toml")).unwrap();
-        let history = vec![
+        let mut history = vec![
             yesterday_reading(Target::System("RACK".into()), 7.5, 0.2),
             yesterday_reading(Target::Tank("T-1".into()), 7.4, 0.3),
         ];
+        history.extend(records);
         let app = App::new(
             facility,
             history,
@@ -500,4 +508,57 @@ fn the_fields_come_in_the_rooms_order() {
     // The next tank carries the system's values into the same places.
     assert_eq!(w.tank(), "R-2");
     assert_eq!(w.texts(), ["7.6", "25.5", "0.4", "120", ""]);
+}
+
+/// A room that reads pH, temperature and total ammonia, nothing else.
+fn three_field_room() -> String {
+    ROOM.replace(
+        "kit_basis = \"n\"\n",
+        "kit_basis = \"n\"\nreading_fields = [\"ph\", \"temperature\", \"total-ammonia\"]\noptional_fields = []\n",
+    )
+}
+
+/// A reading taken an hour ago, this round, with nitrite and chloride besides the three.
+fn this_morning_with_nitrite(target: Target, seed: u128) -> Record {
+    let mut record = yesterday_reading(target, 7.4, 0.3);
+    record.id = Ulid::from_parts(2, seed);
+    record.taken_at = now() - Duration::hours(1);
+    let RecordBody::Reading(reading) = &mut record.body else { unreachable!() };
+    reading.measurements.nitrite = Some(NitrogenReading { value: 0.2, basis: NitrogenIonBasis::N });
+    reading.measurements.chloride_mg_l = Some(40.0);
+    record
+}
+
+#[test]
+fn correcting_a_reading_keeps_the_values_the_walk_does_not_show() {
+    let mut w = Walk::with_records(&three_field_room(), vec![this_morning_with_nitrite(Target::Tank("T-1".into()), 1)]);
+    w.keys("w pagedown pagedown pagedown");
+    assert_eq!(w.tank(), "T-1");
+    assert_eq!(w.texts(), ["7.4", "25", "0.3"]);
+    w.keys("delete 7.1 s enter");
+    let RecordBody::Correction(correction) = &w.saved[0].body else { panic!("a correction") };
+    let m = &correction.replacement.as_deref().and_then(RecordBody::as_reading).unwrap().measurements;
+    assert_eq!(m.ph, Some(7.1));
+    assert_eq!(m.nitrite_n_mg_l(), Some(0.2), "nitrite, not shown here, is kept");
+    assert_eq!(m.chloride_mg_l, Some(40.0));
+}
+
+#[test]
+fn correcting_a_systems_reading_keeps_the_values_the_walk_does_not_show() {
+    let mut w =
+        Walk::with_records(&three_field_room(), vec![this_morning_with_nitrite(Target::System("RACK".into()), 2)]);
+    // The rack is done by its system's reading: the walk starts at T-1; back to R-3.
+    w.keys("w pageup");
+    assert_eq!(w.tank(), "R-3");
+    assert!(matches!(w.app.walk.as_ref().unwrap().entry.fields[0].provenance, Provenance::Carried(_)));
+    w.keys("delete 7.0 s");
+    assert!(matches!(w.app.modal, Some(Modal::Pick(_))));
+    // Correct the system's reading, for the reason suggested.
+    w.keys("enter enter");
+    let RecordBody::Correction(correction) = &w.saved[0].body else { panic!("a correction") };
+    let replacement = correction.replacement.as_deref().and_then(RecordBody::as_reading).unwrap();
+    assert_eq!(replacement.target, Target::System("RACK".into()));
+    assert_eq!(replacement.measurements.ph, Some(7.0));
+    assert_eq!(replacement.measurements.nitrite_n_mg_l(), Some(0.2));
+    assert_eq!(replacement.measurements.chloride_mg_l, Some(40.0));
 }

@@ -121,6 +121,40 @@ fn put(m: &mut Measurements, kind: FieldKind, value: f64) {
     }
 }
 
+/// Copies from `stored` the measurements no field of the entry shows, so a
+/// correction made on the walk keeps what was recorded without it (on the
+/// command line, or before the room changed its fields).
+fn keep_unshown(m: &mut Measurements, stored: &Measurements, fields: &[NumberField]) {
+    let shown = |is: fn(FieldKind) -> bool| fields.iter().any(|f| is(f.kind));
+    if !shown(|k| matches!(k, FieldKind::TemperatureC | FieldKind::TemperatureF)) {
+        m.temperature = stored.temperature;
+    }
+    if !shown(|k| k == FieldKind::Ph) {
+        m.ph = stored.ph;
+    }
+    if !shown(|k| matches!(k, FieldKind::TotalAmmonia(_))) {
+        m.total_ammonia = stored.total_ammonia;
+    }
+    if !shown(|k| k == FieldKind::Nitrite) {
+        m.nitrite = stored.nitrite;
+    }
+    if !shown(|k| k == FieldKind::Nitrate) {
+        m.nitrate = stored.nitrate;
+    }
+    if !shown(|k| k == FieldKind::Salinity) {
+        m.salinity = stored.salinity;
+    }
+    if !shown(|k| k == FieldKind::DissolvedOxygen) {
+        m.dissolved_oxygen_mg_l = stored.dissolved_oxygen_mg_l;
+    }
+    if !shown(|k| k == FieldKind::Chloride) {
+        m.chloride_mg_l = stored.chloride_mg_l;
+    }
+    if !shown(|k| k == FieldKind::Alkalinity) {
+        m.alkalinity = stored.alkalinity;
+    }
+}
+
 /// The last values read before this round, field by field.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Previous {
@@ -728,6 +762,7 @@ pub fn plan_save(app: &App, entry: &TankEntry, draft: &SaveDraft) -> Result<Save
         if correct_system && !changed_carried.is_empty() {
             corrections_needed = true;
             let mut replacement = carried.reading.clone();
+            keep_unshown(&mut system_m, &carried.reading.measurements, &entry.fields);
             replacement.measurements = system_m;
             bodies.push(Staged::Correct(carried.head, Some(RecordBody::Reading(replacement))));
         }
@@ -748,6 +783,12 @@ pub fn plan_save(app: &App, entry: &TankEntry, draft: &SaveDraft) -> Result<Save
     match entry.own {
         Some((head, _)) if own_changed => {
             corrections_needed = true;
+            let stored = round::own_this_round(&app.history, tank, app.round_start)
+                .filter(|e| e.head == head)
+                .and_then(|e| e.reading());
+            if let Some(stored) = stored {
+                keep_unshown(&mut own.measurements, &stored.measurements, &entry.fields);
+            }
             // Everything of the tank's own reading taken away withdraws it.
             let replacement = (!own.is_empty()).then_some(RecordBody::Reading(own));
             bodies.push(Staged::Correct(head, replacement));
