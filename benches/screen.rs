@@ -14,6 +14,7 @@ use ratatui::Terminal;
 use ratatui::backend::TestBackend;
 use tankwalk::model::facility::Facility;
 use tankwalk::model::record::{DeviceId, Record};
+use tankwalk::store::{SledStore, Store, TimeRange};
 use tankwalk::tui::keymap::{Key, Keymap};
 use tankwalk::tui::state::{App, Input, SessionInfo, update};
 use tankwalk::tui::view;
@@ -104,6 +105,28 @@ fn start(c: &mut Criterion) {
             BatchSize::LargeInput,
         )
     });
+    // The same from a store on disk: open (journal + sled), read the last 90
+    // days of records, build the state, draw (what `tankwalk` does before the first frame).
+    let dir = tempfile::tempdir().expect("a temporary folder");
+    {
+        let mut store = SledStore::open(dir.path()).expect("a new store");
+        for batch in records.chunks(5_000) {
+            store.append(batch).expect("saved");
+        }
+    }
+    group.bench_function(
+        format!("{readings} readings in a store on disk, 1000 tanks: open + load + state + frame"),
+        |b| {
+            b.iter(|| {
+                let store = SledStore::open(dir.path()).expect("the store opens");
+                let since = (now() - chrono::Duration::days(90)).with_timezone(&chrono::Utc);
+                let loaded: Vec<Record> = store.history(&[], &TimeRange::new(Some(since), None)).expect("records");
+                let app = app_with(room.clone(), loaded);
+                let mut terminal = Terminal::new(TestBackend::new(160, 48)).expect("test backend");
+                terminal.draw(|f| view::render(&app, &keymap, f)).map(|_| ())
+            })
+        },
+    );
     group.finish();
 }
 

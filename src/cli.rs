@@ -39,6 +39,7 @@ pub(crate) use bad_input;
     name = "tankwalk",
     version,
     about = "Morning water checks for rooms of fish tanks: toxic ammonia, risk bands and what to do",
+    long_about = "Morning water checks for rooms of fish tanks: toxic ammonia, risk bands and what to do.\n\nWithout a command, tankwalk opens the walk screen on the current room (--room, or the one used last). `tankwalk demo` tries it on a sample room in a throw-away store.",
     after_help = tankwalk::CAUTION
 )]
 struct Cli {

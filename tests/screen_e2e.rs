@@ -1,6 +1,7 @@
 //! End to end in a real terminal: the real binary in tmux on a sample room
 //! with a temporary data folder walks six tubs (five read, one skipped) and
-//! quits; `tankwalk log --json` must then hold exactly those five readings.
+//! quits; `tankwalk log --json` must then hold exactly those five readings
+//! and the skip with its reason.
 //!
 //! A second test makes the screen panic (by fault injection) in the middle of
 //! the walk and checks that the terminal is left usable and no save is lost.
@@ -94,7 +95,8 @@ fn walk_five_tubs_skip_one_quit_and_the_log_has_exactly_those_readings() {
     tmux.wait_for("Room board");
     tmux.keys(&["w"]);
     tmux.wait_for("T-01");
-    // Tubs 1, 2, 4, 5 and 6 are read (°F, pH, total ammonia as NH4+, nitrite); tub 3 is skipped.
+    // Tubs 1, 2, 4, 5 and 6 are read in the room's order (pH, °F, total ammonia as NH4+,
+    // nitrite); tub 3 is skipped.
     let readings = [("T-01", "78", "7.2", "0.3"), ("T-02", "77", "7.4", "0.5"), ("T-04", "79", "7.0", "0.25")];
     let more = [("T-05", "78.5", "7.6", "1.2"), ("T-06", "76", "7.3", "0.1")];
     for (tank, temp, ph, tan) in readings.iter().chain(&more) {
@@ -106,7 +108,7 @@ fn walk_five_tubs_skip_one_quit_and_the_log_has_exactly_those_readings() {
             tmux.wait_for("Skipped T-03");
         }
         tmux.wait_for(&format!(" {tank} "));
-        tmux.keys(&[temp, "Enter", ph, "Enter", tan, "Enter", "0.05", "s"]);
+        tmux.keys(&[ph, "Enter", temp, "Enter", tan, "Enter", "0.05", "s"]);
         tmux.wait_for(&format!("Saved: {tank} is on disk"));
     }
     tmux.keys(&["q"]);
@@ -120,7 +122,13 @@ fn walk_five_tubs_skip_one_quit_and_the_log_has_exactly_those_readings() {
         .unwrap();
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
     let log: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
-    let rows = log.as_array().unwrap();
+    let all = log.as_array().unwrap();
+    // The skip is stored too, with its reason.
+    let skips: Vec<_> = all.iter().filter(|r| r["kind"] == "skip").collect();
+    assert_eq!(skips.len(), 1, "{log:#}");
+    assert_eq!(skips[0]["tank"], "T-03");
+    assert_eq!(skips[0]["note"], "tank empty or being set up", "{:#}", skips[0]);
+    let rows: Vec<_> = all.iter().filter(|r| r["kind"] != "skip").collect();
     assert_eq!(rows.len(), 5, "{log:#}");
     let mut tanks: Vec<&str> = rows.iter().map(|r| r["tank"].as_str().unwrap()).collect();
     tanks.sort_unstable();
@@ -158,11 +166,12 @@ fn a_panic_inside_the_screen_leaves_the_terminal_usable_and_keeps_earlier_saves(
     assert_eq!(tmux.pane("#{alternate_on}"), "1", "the screen runs on the alternate screen");
     tmux.keys(&["w"]);
     tmux.wait_for(" T-01 ");
-    tmux.keys(&["78", "Enter", "7.2", "Enter", "0.3", "Enter", "0.05", "s"]);
+    // The tub room reads pH first, then °F, total ammonia, nitrite.
+    tmux.keys(&["7.2", "Enter", "78", "Enter", "0.3", "Enter", "0.05", "s"]);
     tmux.wait_for("Saved: T-01 is on disk");
     // The second save panics inside the screen.
     tmux.wait_for(" T-02 ");
-    tmux.keys(&["77", "Enter", "7.4", "Enter", "0.5", "Enter", "0.1", "s"]);
+    tmux.keys(&["7.4", "Enter", "77", "Enter", "0.5", "Enter", "0.1", "s"]);
     tmux.wait_for("tankwalk exited 101");
 
     let screen = tmux.screen_and_history();

@@ -7,7 +7,6 @@ use clap::Args;
 use ulid::Ulid;
 
 use tankwalk::model::record::{DeviceId, Event, Field, Record, RecordBody};
-use tankwalk::store::{Entry, Store};
 
 use super::GlobalArgs;
 use super::input::{self, EventKindCommand, TargetArgs, WhoWhenArgs};
@@ -38,7 +37,7 @@ pub fn run(global: &GlobalArgs, args: &EventArgs) -> Result<ExitCode> {
     let taken_at = args.who.taken_at(input::now_local())?;
     let kind = args.kind.to_kind()?;
     let event = Event { target: place.target.clone(), kind, note: args.note.clone().filter(|n| !n.trim().is_empty()) };
-    let mut record = Record::new(DeviceId(Ulid::nil()), operator, taken_at, RecordBody::Event(event));
+    let record = Record::new(DeviceId(Ulid::nil()), operator, taken_at, RecordBody::Event(event));
     record.check().map_err(|e| {
         let option = match e.field() {
             Field::Note => "--note",
@@ -48,12 +47,5 @@ pub fn run(global: &GlobalArgs, args: &EventArgs) -> Result<ExitCode> {
         input::refuse(option, &e)
     })?;
 
-    let mut store = super::open_store(global)?;
-    record.device = store.device();
-    store.append(std::slice::from_ref(&record))?;
-    drop(store);
-
-    let entry = Entry { original: record, corrections: Vec::new() };
-    super::record::print_saved(&entry, facility, None, Vec::new(), args.json)?;
-    Ok(ExitCode::SUCCESS)
+    super::record::save_and_print(global, facility, record, Vec::new(), args.json)
 }

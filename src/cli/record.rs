@@ -63,18 +63,29 @@ pub fn run(global: &GlobalArgs, args: &RecordArgs) -> Result<ExitCode> {
             "nothing to record: give at least one value (--temp-c, --ph, --tan, ...), --observe or --deaths"
         ));
     }
-    let mut record = Record::new(DeviceId(Ulid::nil()), operator, taken_at, RecordBody::Reading(reading));
+    let record = Record::new(DeviceId(Ulid::nil()), operator, taken_at, RecordBody::Reading(reading));
     let warnings = record.check().map_err(|e| input::refuse(args.reading.option_for(&e), &e))?;
     let warnings = input::warning_lines(&warnings, |f| args.reading.option_for_field(f).to_string());
 
+    save_and_print(global, facility, record, warnings, args.json)
+}
+
+/// Saves one new record durably (with this data folder's device), then prints
+/// it with its assessment: `record`, `event` and `skip` end here.
+pub fn save_and_print(
+    global: &GlobalArgs,
+    facility: Option<&Facility>,
+    mut record: Record,
+    warnings: Vec<String>,
+    json: bool,
+) -> Result<ExitCode> {
     let mut store = super::open_store(global)?;
     record.device = store.device();
     store.append(std::slice::from_ref(&record))?;
     let entry = Entry { original: record, corrections: Vec::new() };
     let assessment = assess_entry(&store, facility, &entry)?;
     drop(store);
-
-    print_saved(&entry, facility, assessment.as_ref(), warnings, args.json)?;
+    print_saved(&entry, facility, assessment.as_ref(), warnings, json)?;
     Ok(ExitCode::SUCCESS)
 }
 

@@ -7,7 +7,6 @@ use clap::Args;
 use ulid::Ulid;
 
 use tankwalk::model::record::{DeviceId, Field, Record, RecordBody, Skip};
-use tankwalk::store::{Entry, Store};
 
 use super::GlobalArgs;
 use super::input::{self, TargetArgs, WhoWhenArgs};
@@ -34,18 +33,11 @@ pub fn run(global: &GlobalArgs, args: &SkipArgs) -> Result<ExitCode> {
     let operator = args.who.operator()?;
     let taken_at = args.who.taken_at(input::now_local())?;
     let skip = Skip { target: place.target.clone(), reason: args.reason.trim().to_string() };
-    let mut record = Record::new(DeviceId(Ulid::nil()), operator, taken_at, RecordBody::Skip(skip));
+    let record = Record::new(DeviceId(Ulid::nil()), operator, taken_at, RecordBody::Skip(skip));
     record.check().map_err(|e| {
         let option = if e.field() == Field::Operator { "--operator" } else { "--reason" };
         input::refuse(option, &e)
     })?;
 
-    let mut store = super::open_store(global)?;
-    record.device = store.device();
-    store.append(std::slice::from_ref(&record))?;
-    drop(store);
-
-    let entry = Entry { original: record, corrections: Vec::new() };
-    super::record::print_saved(&entry, facility, None, Vec::new(), args.json)?;
-    Ok(ExitCode::SUCCESS)
+    super::record::save_and_print(global, facility, record, Vec::new(), args.json)
 }

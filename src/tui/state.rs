@@ -24,8 +24,6 @@ pub mod verdict;
 pub mod walk;
 pub mod whatif;
 
-use std::collections::BTreeMap;
-
 use chrono::{DateTime, FixedOffset, Utc};
 use ulid::Ulid;
 
@@ -127,8 +125,6 @@ pub struct App {
     pub round_order: Vec<usize>,
     /// Per tank (same index as `facility.tanks`).
     pub statuses: Vec<TankStatus>,
-    /// Tanks skipped this round, with the reason.
-    pub skips: BTreeMap<usize, String>,
     /// When this round started.
     pub round_start: DateTime<FixedOffset>,
     /// The time of the last input.
@@ -170,12 +166,11 @@ impl App {
     ) -> App {
         let round_order =
             facility.round().iter().filter_map(|t| facility.tanks.iter().position(|u| u.id == t.id)).collect();
-        let round_start = round::round_start(now, facility.room.round_interval_hours);
+        let round_start = facility.room.round_start(now);
         let mut app = App {
             history: History::from_records(records),
             round_order,
             statuses: Vec::new(),
-            skips: BTreeMap::new(),
             round_start,
             now,
             screens: vec![Screen::Board],
@@ -203,17 +198,7 @@ impl App {
             .facility
             .tanks
             .iter()
-            .enumerate()
-            .map(|(i, tank)| {
-                round::tank_status(
-                    &self.facility,
-                    &self.history,
-                    tank,
-                    self.round_start,
-                    self.now,
-                    self.skips.contains_key(&i),
-                )
-            })
+            .map(|tank| round::tank_status(&self.facility, &self.history, tank, self.round_start, self.now))
             .collect();
     }
 
@@ -360,6 +345,11 @@ pub enum SaveFor {
         /// The tank.
         tank: usize,
     },
+    /// The walk's skip of this tank.
+    Skip {
+        /// The tank.
+        tank: usize,
+    },
     /// An event recorded from this tank's page.
     Event {
         /// The tank.
@@ -387,17 +377,18 @@ pub const INTERRUPT: Key = Key::ctrl('c');
 /// Applies one input at time `now`; returns what `run.rs` must do.
 pub fn update(app: &mut App, keymap: &Keymap, input: Input, now: DateTime<FixedOffset>) -> Vec<Effect> {
     app.now = now;
-    let start = round::round_start(now, app.facility.room.round_interval_hours);
+    let start = app.facility.room.round_start(now);
     if start != app.round_start {
         // A new round began while the screen was open.
         app.round_start = start;
-        app.skips.clear();
+        app.refresh_statuses();
     }
     match input {
         Input::Key(key) => on_key(app, keymap, key),
         Input::Saved(result) => {
             match app.saving.take() {
                 Some(SaveFor::Entry { tank }) => walk::saved(app, tank, result),
+                Some(SaveFor::Skip { tank }) => walk::skip_saved(app, tank, result),
                 Some(SaveFor::Event { tank }) => tank_page::event_saved(app, tank, result),
                 None => {}
             }

@@ -261,6 +261,22 @@ pub fn amount(value: f64) -> String {
     if text.contains('.') { text.trim_end_matches('0').trim_end_matches('.').to_string() } else { text }
 }
 
+/// An action as one line: title, quantity, second quantity, repeats
+/// ("Water change 45 % (801 L) ×4").
+pub fn action_text(action: &crate::rules::action::Action) -> String {
+    let mut text = action.kind.title().to_string();
+    if let (Some(q), Some(unit)) = (action.quantity, action.unit) {
+        text.push_str(&format!(" {} {unit}", amount(q)));
+    }
+    if let Some(also) = action.also {
+        text.push_str(&format!(" ({} {})", amount(also.quantity), also.unit));
+    }
+    if let Some(times) = action.repeat {
+        text.push_str(&format!(" ×{times}"));
+    }
+    text
+}
+
 /// The first key bound to `action` in `context`, for text such as "press s to save".
 pub fn key_of(keymap: &Keymap, context: Context, action: Action) -> String {
     keymap.chords_for(context, action).first().map_or_else(|| action.name().to_string(), ToString::to_string)

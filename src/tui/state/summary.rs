@@ -71,7 +71,10 @@ pub fn summarize(app: &App) -> Summary {
     for &t in &app.round_order {
         match app.statuses[t].due {
             Due::Done => summary.done.push(t),
-            Due::Skipped => summary.skipped.push((t, app.skips.get(&t).cloned().unwrap_or_default())),
+            Due::Skipped => summary.skipped.push((
+                t,
+                round::skip_this_round(&app.history, app.tank(t), app.round_start).unwrap_or_default().to_string(),
+            )),
             Due::NotDue => summary.not_due.push(t),
             Due::Due | Due::Overdue | Due::Never => summary.not_reached.push(t),
         }

@@ -1,18 +1,18 @@
-//! The one place the screen asks for an assessment: it gathers a tank's
-//! earlier readings and events from the history and calls
-//! [`crate::rules::assess::assess`].
+//! The one place the screen asks for an assessment: it builds the tank's
+//! [`Timeline`] from the screen's history and judges the reading with it, so
+//! the walk, `record`, `log` and the report judge a reading the same way.
 
 use chrono::{DateTime, FixedOffset};
 
-use crate::model::record::Reading;
-use crate::rules::assess::{Assessment, Inputs, PastReading, RulesConfig, assess};
-use crate::rules::biofilter::DatedEvent;
+use crate::model::record::{Reading, RecordBody};
+use crate::rules::{Assessment, RulesConfig};
+use crate::timeline::Timeline;
 
 use super::{App, utc};
 
 /// Assesses `reading` for the tank at `tank_index`, taken at `at`, against
-/// the readings taken before `before` (so a reading being corrected is not
-/// its own history) and every event up to `at`.
+/// the readings taken before `before` (so a reading being typed or corrected
+/// is not its own history) and the tank's events.
 pub fn assess_reading(
     app: &App,
     tank_index: usize,
@@ -21,22 +21,15 @@ pub fn assess_reading(
     before: DateTime<FixedOffset>,
 ) -> Assessment {
     let tank = app.tank(tank_index);
-    let entries = app.history.of_tank(tank);
-    let history: Vec<PastReading<'_>> = entries
-        .iter()
-        .filter(|e| e.taken_at < before)
-        .filter_map(|e| Some(PastReading { at: utc(e.taken_at), reading: e.reading()? }))
-        .collect();
-    let events: Vec<DatedEvent<'_>> =
-        entries.iter().filter_map(|e| Some(DatedEvent { at: utc(e.taken_at), kind: &e.event()?.kind })).collect();
-    let config = RulesConfig::default();
-    assess(&Inputs {
-        facility: &app.facility,
-        tank,
-        reading,
-        at: utc(at),
-        history: &history,
-        events: &events,
-        config: &config,
-    })
+    let mut timeline = Timeline::default();
+    for entry in app.history.of_tank(tank) {
+        let when = utc(entry.taken_at);
+        match &entry.body {
+            RecordBody::Reading(r) if entry.taken_at < before => timeline.readings.push((when, entry.id, r.clone())),
+            RecordBody::Event(e) => timeline.events.push((when, e.kind.clone())),
+            RecordBody::Skip(s) => timeline.skips.push((when, s.reason.clone())),
+            _ => {}
+        }
+    }
+    timeline.assess(&app.facility, tank, reading, utc(at), &RulesConfig::default())
 }

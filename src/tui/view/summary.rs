@@ -60,12 +60,7 @@ pub(super) fn render(app: &App, state: &SummaryState, theme: Theme, frame: &mut 
         );
         n += 1;
         for action in attention.actions.iter().take(3) {
-            let quantity = match (action.quantity, action.unit) {
-                (Some(q), Some(u)) => format!(" {} {u}", super::amount(q)),
-                _ => String::new(),
-            };
-            let also = action.also.map_or(String::new(), |q| format!(" ({} {})", super::amount(q.quantity), q.unit));
-            lines.push((false, Line::raw(format!("      • {}{quantity}{also}", action.kind.title()))));
+            lines.push((false, Line::raw(format!("      • {}", super::action_text(action)))));
         }
         if attention.actions.len() > 3 {
             lines.push((
