@@ -10,11 +10,15 @@ mod correct;
 mod doctor;
 mod entry_view;
 mod event;
+mod export;
+mod import;
 mod input;
 mod log;
+mod progress;
 mod rebuild;
 mod record;
 mod room;
+mod sync;
 
 use std::process::ExitCode;
 
@@ -87,6 +91,12 @@ enum Command {
     Doctor(doctor::DoctorArgs),
     /// Recreate the record database from the journal (nothing is deleted).
     Rebuild(rebuild::RebuildArgs),
+    /// Write the records to a folder: JSON Lines (lossless) and CSV (for spreadsheets), with a manifest.
+    Export(export::ExportArgs),
+    /// Add the records of files exported on other laptops; each file is checked whole first.
+    Import(import::ImportArgs),
+    /// Send new records to a shared folder and take in the other laptops' records from it.
+    Sync(sync::SyncArgs),
 }
 
 /// Opens the record store of the data folder, saying what opening repaired.
@@ -150,6 +160,9 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         Some(Command::Log(args)) => log::run(&cli.global, &args),
         Some(Command::Doctor(args)) => doctor::run(&cli.global, &args),
         Some(Command::Rebuild(args)) => rebuild::run(&cli.global, &args),
+        Some(Command::Export(args)) => export::run(&cli.global, &args),
+        Some(Command::Import(args)) => import::run(&cli.global, &args),
+        Some(Command::Sync(args)) => sync::run(&cli.global, &args),
         None => {
             use clap::CommandFactory;
             Cli::command().print_help()?;

@@ -9,6 +9,7 @@
 //! - [`rules`]: the assessment (band, latent risk, trend, biofilter, actions),
 //!   pure: inputs in, assessment out;
 //! - [`store`]: durable storage of records (journal + sled);
+//! - [`exchange`]: export, import and sync of records between laptops through files;
 //! - [`timeline`]: a tank's stored history, ready for the assessment;
 //!
 //! The command line (`src/cli.rs`, in the binary) is the only place that
@@ -17,6 +18,7 @@
 //! Everything tankwalk advises is guidance: see [`CAUTION`].
 
 pub mod core;
+pub mod exchange;
 pub mod model;
 pub mod numfmt;
 pub mod paths;
