@@ -107,8 +107,12 @@ fn write_text(out: &mut impl Write, s: &ExportSummary) -> Result<()> {
     };
     writeln!(
         out,
-        "exported {} records ({} readings, {} events, {} corrections, {} skips){range}",
-        s.records, k.readings, k.events, k.corrections, k.skips
+        "exported {} ({}, {}, {}, {}){range}",
+        count(s.records, "record"),
+        count(k.readings, "reading"),
+        count(k.events, "event"),
+        count(k.corrections, "correction"),
+        count(k.skips, "skip")
     )?;
     for f in &s.files {
         let what = match f.content {
@@ -128,4 +132,10 @@ fn write_text(out: &mut impl Write, s: &ExportSummary) -> Result<()> {
         writeln!(out, "{}", tankwalk::CAUTION)?;
     }
     Ok(())
+}
+
+/// `1 record`, `2 records`.
+pub fn count(n: impl Into<u64>, what: &str) -> String {
+    let n = n.into();
+    if n == 1 { format!("1 {what}") } else { format!("{n} {what}s") }
 }

@@ -10,6 +10,7 @@ use clap::Args;
 use tankwalk::exchange::{self, SyncSummary};
 
 use super::GlobalArgs;
+use super::export::count;
 use super::progress::Bar;
 
 #[derive(Debug, Args)]
@@ -44,7 +45,7 @@ fn write_text(s: &SyncSummary) -> Result<()> {
     let mut out = std::io::stdout().lock();
     let mut err = std::io::stderr().lock();
     match &s.sent {
-        Some(sent) => writeln!(out, "sent {} records ({})", sent.records, sent.path.display())?,
+        Some(sent) => writeln!(out, "sent {} ({})", count(sent.records, "record"), sent.path.display())?,
         None => writeln!(out, "nothing new to send")?,
     }
     let records: usize = s.received.iter().map(|r| r.records).sum();
@@ -54,10 +55,10 @@ fn write_text(s: &SyncSummary) -> Result<()> {
         let laptops = s.devices_received_from().len();
         writeln!(
             out,
-            "received {records} records from {laptops} laptop{} ({} segment{}): {} new, {} already here",
-            if laptops == 1 { "" } else { "s" },
-            s.received.len(),
-            if s.received.len() == 1 { "" } else { "s" },
+            "received {} from {} ({}): {} new, {} already here",
+            count(records as u64, "record"),
+            count(laptops as u64, "laptop"),
+            count(s.received.len() as u64, "segment"),
             s.added(),
             records - s.added() - s.conflicts()
         )?;

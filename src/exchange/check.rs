@@ -436,7 +436,12 @@ mod tests {
         let bad = serde_json::to_string(&value).unwrap();
         let message = journal::parse_record(bad.as_bytes()).unwrap_err();
         assert!(message.starts_with("field \"taken_at\": "), "{message}");
-        assert!(message.contains("(column "), "{message}");
+        let mut value = serde_json::to_value(reading(7.0)).unwrap();
+        value["body"]["observations"]["deaths"] = serde_json::json!(-1);
+        let message = journal::parse_record(&serde_json::to_vec(&value).unwrap()).unwrap_err();
+        assert!(message.starts_with("field \"body.observations.deaths\": invalid value"), "{message}");
+        let message = journal::parse_record(b"{\"id\": oops}").unwrap_err();
+        assert!(message.ends_with("(column 8)"), "{message}");
     }
 
     #[test]

@@ -101,7 +101,8 @@ impl Header {
 
     /// Reads a header line (without its newline).
     pub fn parse(line: &[u8]) -> Result<Header, String> {
-        let header: Header = serde_json::from_slice(line).map_err(|e| format!("not a header line: {e}"))?;
+        let header: Header =
+            serde_json::from_slice(line).map_err(|e| format!("not a header line: {}", json_message(&e, line)))?;
         if header.format != FORMAT {
             return Err(format!("format '{}' is not '{FORMAT}'", header.format));
         }
@@ -127,26 +128,95 @@ pub fn parse_record(line: &[u8]) -> Result<Record, String> {
     Ok(record)
 }
 
-/// What a JSON error on a one-line document says, with its column instead of
-/// "line 1", and the field it is in when that can be told (the nearest
-/// `"name":` before the column).
+/// What a JSON error on a one-line document says, without serde's "at line 1
+/// column N", naming the field it is about when that can be told: the one
+/// field holding the value the error quotes (`integer \`-1\``), or a
+/// record's own field (`taken_at`) just before the column. Values inside a
+/// record's body are read as a whole first, so there the column is the end
+/// of the body, and only the quoted value can name the field.
 pub fn json_message(e: &serde_json::Error, line: &[u8]) -> String {
     let text = e.to_string();
     let what = match text.rfind(" at line ") {
         Some(at) => &text[..at],
         None => text.as_str(),
     };
-    if e.column() == 0 {
-        return what.to_string();
+    match e.classify() {
+        serde_json::error::Category::Data => {
+            if let Ok(value) = serde_json::from_slice::<serde_json::Value>(line)
+                && !value.is_object()
+            {
+                return format!("expected a record (a JSON object), found {}", kind_of(&value));
+            }
+            // "missing field `x`" and "unknown field `x`" say which already; their column is the object's end.
+            let names_itself = what.starts_with("missing field") || what.contains("field `");
+            let field = field_holding(what, line).filter(|_| !names_itself).or_else(|| {
+                field_before(line, e.column())
+                    .filter(|f| !names_itself && ["id", "device", "operator", "taken_at"].contains(&f.as_str()))
+            });
+            match field {
+                Some(field) => format!("field \"{field}\": {what}"),
+                None => what.to_string(),
+            }
+        }
+        _ if e.column() > 0 => format!("{what} (column {})", e.column()),
+        _ => what.to_string(),
     }
-    let field = match e.classify() {
-        serde_json::error::Category::Data => field_before(line, e.column()),
-        _ => None,
+}
+
+fn kind_of(value: &serde_json::Value) -> &'static str {
+    match value {
+        serde_json::Value::Null => "null",
+        serde_json::Value::Bool(_) => "a boolean",
+        serde_json::Value::Number(_) => "a number",
+        serde_json::Value::String(_) => "a string",
+        serde_json::Value::Array(_) => "an array",
+        serde_json::Value::Object(_) => "an object",
+    }
+}
+
+/// The dotted path of the only field of `line` whose value is the one an
+/// error message quotes (`integer \`-1\``, `string "x"`, `unknown variant \`x\``).
+fn field_holding(message: &str, line: &[u8]) -> Option<String> {
+    use serde_json::Value;
+    let quoted = |prefix: &str, open: char, close: char| -> Option<String> {
+        let rest = &message[message.find(prefix)? + prefix.len()..];
+        let rest = rest.strip_prefix(open)?;
+        Some(rest[..rest.find(close)?].to_string())
     };
-    match field {
-        Some(field) => format!("field \"{field}\": {what} (column {})", e.column()),
-        None => format!("{what} (column {})", e.column()),
+    let wanted: Box<dyn Fn(&Value) -> bool> = if let Some(v) = quoted("integer ", '`', '`') {
+        let n: i128 = v.parse().ok()?;
+        Box::new(move |x| x.as_i64().map(i128::from).or(x.as_u64().map(i128::from)) == Some(n))
+    } else if let Some(v) = quoted("floating point ", '`', '`') {
+        let f: f64 = v.parse().ok()?;
+        Box::new(move |x| x.is_f64() && x.as_f64() == Some(f))
+    } else if let Some(v) = quoted("string ", '"', '"').or_else(|| quoted("unknown variant ", '`', '`')) {
+        Box::new(move |x| x.as_str() == Some(v.as_str()))
+    } else if let Some(v) = quoted("boolean ", '`', '`') {
+        let b: bool = v.parse().ok()?;
+        Box::new(move |x| x.as_bool() == Some(b))
+    } else {
+        return None;
+    };
+    let value: Value = serde_json::from_slice(line).ok()?;
+    let mut found = Vec::new();
+    let mut stack = vec![(String::new(), &value)];
+    while let Some((path, v)) = stack.pop() {
+        match v {
+            Value::Object(map) => {
+                for (key, child) in map {
+                    stack.push((if path.is_empty() { key.clone() } else { format!("{path}.{key}") }, child));
+                }
+            }
+            Value::Array(items) => {
+                for (i, child) in items.iter().enumerate() {
+                    stack.push((format!("{path}[{i}]"), child));
+                }
+            }
+            leaf if wanted(leaf) => found.push(path),
+            _ => {}
+        }
     }
+    (found.len() == 1).then(|| found.remove(0))
 }
 
 /// The name of the last `"name":` that starts before byte column `column` (1-based).
