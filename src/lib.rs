@@ -11,6 +11,7 @@
 //! - [`store`]: durable storage of records (journal + sled);
 //! - [`exchange`]: export, import and sync of records between laptops through files;
 //! - [`timeline`]: a tank's stored history, ready for the assessment;
+//! - [`tui`]: the terminal screen (keymaps, pure state and update, views);
 //!
 //! The command line (`src/cli.rs`, in the binary) is the only place that
 //! prints, and the only place that uses `anyhow`.
@@ -18,6 +19,7 @@
 //! Everything tankwalk advises is guidance: see [`CAUTION`].
 
 pub mod core;
+pub mod demo;
 pub mod exchange;
 pub mod model;
 pub mod numfmt;
@@ -25,6 +27,7 @@ pub mod paths;
 pub mod rules;
 pub mod store;
 pub mod timeline;
+pub mod tui;
 
 /// The caution shown with every assessment.
 pub const CAUTION: &str = "Guidance only, not veterinary advice. Local rules and licensed practice govern \

@@ -6,6 +6,8 @@
 //! through here, so that `record`, `log`, the walk and the report all judge a
 //! reading against the same history and events.
 
+use std::collections::HashMap;
+
 use chrono::{DateTime, Duration, Utc};
 
 use crate::model::facility::{Facility, Tank};
@@ -76,12 +78,68 @@ impl Timeline {
         let history: Vec<PastReading<'_>> = self
             .readings
             .iter()
-            .filter(|(t, _, r)| *t < at && *t >= from && !std::ptr::eq(r, reading))
+            .filter(|(t, _, _)| *t < at && *t >= from)
             .map(|(t, _, r)| PastReading { at: *t, reading: r })
             .collect();
         let events: Vec<DatedEvent<'_>> =
             self.events.iter().filter(|(t, _)| *t <= at).map(|(t, kind)| DatedEvent { at: *t, kind }).collect();
         assess(&Inputs { facility, tank, reading, at, history: &history, events: &events, config })
+    }
+}
+
+/// Assesses stored readings, loading each tank's timeline once.
+///
+/// A reading on a tank is judged for that tank. A reading on a system applies
+/// to every tank on it: it is judged for each, and the most severe assessment
+/// (highest band, then highest latent band) is returned, so the most sensitive
+/// species on the shared water decides.
+pub struct Assessor<'a, S: Store + ?Sized> {
+    store: &'a S,
+    facility: &'a Facility,
+    range: TimeRange,
+    config: RulesConfig,
+    timelines: HashMap<String, Timeline>,
+}
+
+impl<'a, S: Store + ?Sized> Assessor<'a, S> {
+    /// An assessor for readings taken within `range` (their history is read
+    /// from [`LOOK_BACK`] before it).
+    pub fn new(store: &'a S, facility: &'a Facility, range: TimeRange) -> Assessor<'a, S> {
+        Assessor { store, facility, range, config: RulesConfig::default(), timelines: HashMap::new() }
+    }
+
+    fn timeline(&mut self, tank: &Tank) -> Result<&Timeline, StoreError> {
+        let key = tank.id.as_str().to_string();
+        if !self.timelines.contains_key(&key) {
+            let timeline = Timeline::load(self.store, self.facility, tank, &self.range)?;
+            self.timelines.insert(key.clone(), timeline);
+        }
+        Ok(&self.timelines[&key])
+    }
+
+    /// The assessment of `reading` on `target` taken at `at`; `None` when the
+    /// target is not in the room.
+    pub fn assess(
+        &mut self,
+        target: &Target,
+        reading: &Reading,
+        at: DateTime<Utc>,
+    ) -> Result<Option<Assessment>, StoreError> {
+        let facility = self.facility;
+        let tanks: Vec<&Tank> = match target {
+            Target::Tank(id) => facility.tank(id).into_iter().collect(),
+            Target::System(id) => facility.system(id).map(|s| facility.tanks_on(s)).unwrap_or_default(),
+        };
+        let mut worst: Option<Assessment> = None;
+        for tank in tanks {
+            let config = self.config;
+            let assessment = self.timeline(tank)?.assess(facility, tank, reading, at, &config);
+            let severity = |a: &Assessment| (a.band, a.latent.map(|l| l.band));
+            if worst.as_ref().is_none_or(|w| severity(&assessment) > severity(w)) {
+                worst = Some(assessment);
+            }
+        }
+        Ok(worst)
     }
 }
 
