@@ -261,7 +261,10 @@ impl<W: Write> ReadingsCsv<W> {
 
     /// Writes one row.
     pub fn row(&mut self, cells: &[Cell]) -> csv::Result<()> {
-        self.writer.write_record(cells.iter().map(|c| c.render().into_owned()))?;
+        for cell in cells {
+            self.writer.write_field(cell.render().as_bytes())?;
+        }
+        self.writer.write_record(std::iter::empty::<&[u8]>())?;
         self.rows += 1;
         Ok(())
     }
