@@ -169,7 +169,7 @@ fn main() {
     }
     println!();
     println!(
-        "| export | records/s | MB/s | plain write of the same bytes, MB/s | time ratio export / plain | bytes | peak memory |"
+        "| export | records/s | MB/s | plain write of the same bytes, MB/s | time ratio export / plain | bytes | peak memory (highest round) |"
     );
     println!("|---|---|---|---|---|---|---|");
     for ExportRow { label, secs, peaks, plain, ratio, bytes } in &rows {

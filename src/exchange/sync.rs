@@ -194,9 +194,10 @@ pub fn sync(
         left: Vec::new(),
         notes: Vec::new(),
     };
-    let stale = remove_stale_partials(&my_dir);
+    // What a killed sync left: a segment in this laptop's folder, the memo in the data folder.
+    let stale = remove_stale_partials(&my_dir) + remove_stale_partials(store.dir());
     if stale > 0 {
-        summary.notes.push(format!("removed {stale} temporary files of an interrupted sync in {}", my_dir.display()));
+        summary.notes.push(format!("removed {stale} temporary files of an interrupted sync"));
     }
 
     let state_path = store.dir().join(STATE_FILE);
