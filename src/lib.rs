@@ -9,6 +9,7 @@
 //! - [`rules`]: the assessment (band, latent risk, trend, biofilter, actions),
 //!   pure: inputs in, assessment out;
 //! - [`store`]: durable storage of records (journal + sled);
+//! - [`exchange`]: export, import and sync of records between laptops through files;
 //! - [`timeline`]: a tank's stored history, ready for the assessment;
 //! - [`tui`]: the terminal screen (keymaps, pure state and update, views);
 //!
@@ -19,6 +20,7 @@
 
 pub mod core;
 pub mod demo;
+pub mod exchange;
 pub mod model;
 pub mod numfmt;
 pub mod paths;
