@@ -200,15 +200,15 @@ pub fn reading_row(
     let context = room.of(&reading.target).clone();
     let m = &reading.measurements;
     let measured_salinity = m.salinity_ppt();
-    let (salinity_used, salinity_from) = match (measured_salinity, context.salinity_g_l) {
-        (Some(s), _) => (Some(s), "measured"),
-        (None, Some(s)) => (Some(s), "room file"),
-        (None, None) => (Some(0.0), "assumed fresh"),
+    let salinity_from = match (measured_salinity, context.salinity_g_l) {
+        (Some(_), _) => "measured",
+        (None, Some(_)) => "room file",
+        (None, None) => "assumed fresh",
     };
-    let derived = reading.water_sample().map(|mut s| {
-        s.salinity_ppt = salinity_used.unwrap_or(0.0);
-        sample::derive(&s, &context.edges, 0.0)
-    });
+    // The one water-sample rule: measured salinity, else the room's, else fresh water.
+    let sample = m.water_sample(context.salinity_g_l.unwrap_or(0.0));
+    let salinity_used = sample.map(|s| s.salinity_ppt);
+    let derived = sample.map(|s| sample::derive(&s, &context.edges, 0.0));
     let local = original.taken_at;
     let signs: Vec<&str> = reading.observations.signs().into_iter().map(|s| s.name()).collect();
     vec![
