@@ -55,6 +55,9 @@ pub fn run(global: &GlobalArgs, args: &ExportArgs) -> Result<ExitCode> {
         FormatArg::Csv => Formats::Csv,
         FormatArg::Both => Formats::Both,
     };
+    if args.out.exists() && !args.out.is_dir() {
+        return Err(bad_input!("--out: {} is a file, not a folder", args.out.display()));
+    }
     let room = if formats.csv() { optional_room(global)? } else { None };
     let options = ExportOptions {
         formats,
