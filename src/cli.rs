@@ -14,6 +14,7 @@ mod input;
 mod log;
 mod rebuild;
 mod record;
+mod report;
 mod room;
 
 use std::process::ExitCode;
@@ -87,6 +88,8 @@ enum Command {
     Doctor(doctor::DoctorArgs),
     /// Recreate the record database from the journal (nothing is deleted).
     Rebuild(rebuild::RebuildArgs),
+    /// The round report: who walked it, tanks to act on, trends and deaths, as text, Markdown, HTML or JSON.
+    Report(report::ReportArgs),
 }
 
 /// Opens the record store of the data folder, saying what opening repaired.
@@ -150,6 +153,7 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         Some(Command::Log(args)) => log::run(&cli.global, &args),
         Some(Command::Doctor(args)) => doctor::run(&cli.global, &args),
         Some(Command::Rebuild(args)) => rebuild::run(&cli.global, &args),
+        Some(Command::Report(args)) => report::run(&cli.global, &args),
         None => {
             use clap::CommandFactory;
             Cli::command().print_help()?;

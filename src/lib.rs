@@ -7,6 +7,8 @@
 //!   and validated from its TOML file, and the records of readings, events and
 //!   corrections;
 //! - [`store`]: durable storage of records (journal + sled);
+//! - [`tank_history`]: one tank's stored history as the assessment takes it;
+//! - [`report`]: the round report (data, text, Markdown, HTML with SVG charts, JSON);
 //!
 //! The command line (`src/cli.rs`, in the binary) is the only place that
 //! prints, and the only place that uses `anyhow`.
@@ -14,11 +16,14 @@
 //! Everything tankwalk advises is guidance: see [`CAUTION`].
 
 pub mod core;
+pub mod demo;
 pub mod model;
 pub mod numfmt;
 pub mod paths;
+pub mod report;
 pub mod rules;
 pub mod store;
+pub mod tank_history;
 
 /// The caution shown with every assessment.
 pub const CAUTION: &str = "Guidance only, not veterinary advice. Local rules and licensed practice govern \
