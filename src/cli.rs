@@ -11,11 +11,14 @@ mod doctor;
 mod entry_view;
 mod event;
 mod input;
+mod keymap;
 mod log;
 mod rebuild;
 mod record;
 mod report;
 mod room;
+mod screen;
+mod skip;
 
 use std::process::ExitCode;
 
@@ -37,11 +40,14 @@ pub(crate) use bad_input;
     name = "tankwalk",
     version,
     about = "Morning water checks for rooms of fish tanks: toxic ammonia, risk bands and what to do",
+    long_about = "Morning water checks for rooms of fish tanks: toxic ammonia, risk bands and what to do.\n\nWithout a command, tankwalk opens the walk screen on the current room (--room, or the one used last). `tankwalk demo` tries it on a sample room in a throw-away store.",
     after_help = tankwalk::CAUTION
 )]
 struct Cli {
     #[command(flatten)]
     global: GlobalArgs,
+    #[command(flatten)]
+    keymap: keymap::KeymapOption,
     #[command(subcommand)]
     command: Option<Command>,
 }
@@ -76,6 +82,10 @@ enum Command {
     Calc(calc::CalcArgs),
     /// Check a facility file: list every error with its line, or summarise the room.
     CheckRoom(check_room::CheckRoomArgs),
+    /// Check a keymap file, or list the keys in use.
+    Keymap(keymap::KeymapArgs),
+    /// Open the screen on a sample room with a generated history, in a throw-away store.
+    Demo(screen::DemoArgs),
     /// Save a reading of a tank or a system; prints its id, NH3 and band.
     Record(record::RecordArgs),
     /// Save something done to a tank or a system (water change, medication, ...).
@@ -84,6 +94,8 @@ enum Command {
     Correct(correct::CorrectArgs),
     /// History, newest first, with NH3 and band computed on the fly.
     Log(log::LogArgs),
+    /// Note that a tank or system was passed over on a round, and why.
+    Skip(skip::SkipArgs),
     /// Check that the record database and its journal agree.
     Doctor(doctor::DoctorArgs),
     /// Recreate the record database from the journal (nothing is deleted).
@@ -147,18 +159,17 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
     match cli.command {
         Some(Command::Calc(args)) => calc::run(&args, &cli.global),
         Some(Command::CheckRoom(args)) => check_room::run(&args),
+        Some(Command::Keymap(args)) => keymap::run(&cli.global, &cli.keymap, &args),
+        Some(Command::Demo(args)) => screen::demo(&cli.global, &cli.keymap, &args),
         Some(Command::Record(args)) => record::run(&cli.global, &args),
         Some(Command::Event(args)) => event::run(&cli.global, &args),
         Some(Command::Correct(args)) => correct::run(&cli.global, &args),
         Some(Command::Log(args)) => log::run(&cli.global, &args),
+        Some(Command::Skip(args)) => skip::run(&cli.global, &args),
         Some(Command::Doctor(args)) => doctor::run(&cli.global, &args),
         Some(Command::Rebuild(args)) => rebuild::run(&cli.global, &args),
         Some(Command::Report(args)) => report::run(&cli.global, &args),
-        None => {
-            use clap::CommandFactory;
-            Cli::command().print_help()?;
-            Ok(ExitCode::SUCCESS)
-        }
+        None => screen::open(&cli.global, &cli.keymap),
     }
 }
 

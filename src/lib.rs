@@ -6,9 +6,12 @@
 //! - [`model`]: the facility (room, species profiles, systems, tanks), parsed
 //!   and validated from its TOML file, and the records of readings, events and
 //!   corrections;
+//! - [`rules`]: the assessment (band, latent risk, trend, biofilter, actions),
+//!   pure: inputs in, assessment out;
 //! - [`store`]: durable storage of records (journal + sled);
-//! - [`tank_history`]: one tank's stored history as the assessment takes it;
+//! - [`timeline`]: a tank's stored history, ready for the assessment;
 //! - [`report`]: the round report (data, text, Markdown, HTML with SVG charts, JSON);
+//! - [`tui`]: the terminal screen (keymaps, pure state and update, views);
 //!
 //! The command line (`src/cli.rs`, in the binary) is the only place that
 //! prints, and the only place that uses `anyhow`.
@@ -23,7 +26,8 @@ pub mod paths;
 pub mod report;
 pub mod rules;
 pub mod store;
-pub mod tank_history;
+pub mod timeline;
+pub mod tui;
 
 /// The caution shown with every assessment.
 pub const CAUTION: &str = "Guidance only, not veterinary advice. Local rules and licensed practice govern \

@@ -1,8 +1,8 @@
 //! The round report: what a lead, an owner or an aquatic vet needs from the
 //! records, for people who have never seen tankwalk.
 //!
-//! [`gather`] is a pure function from the facility, the records (current
-//! values, see [`crate::tank_history::current_records`]) and a [`Request`]
+//! [`gather`] is a pure function from the facility, the history entries
+//! (records with their corrections) and a [`Request`]
 //! (the round, the period, which tanks) to a [`RoundReport`]: who walked the
 //! round and when, tanks done, skipped and not reached, every tank in `act` or
 //! `critical` and every latent risk with the actions suggested and the events
@@ -40,10 +40,6 @@ pub use words::headline;
 
 /// Days of history the charts cover when no period is given.
 pub const DEFAULT_PERIOD_DAYS: i64 = 14;
-
-/// Days of records before the period that the assessment looks at (trends,
-/// the biofilter's recent events, feeding held, the last water change).
-pub const LOOKBACK_DAYS: i64 = 60;
 
 /// A span of time, both ends included, in the report's offset.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
@@ -144,10 +140,10 @@ impl Request {
         self.round.until.max(self.period.until)
     }
 
-    /// The records `gather` needs: from [`LOOKBACK_DAYS`] before the period
-    /// or the round up to the end.
+    /// The records `gather` needs: from [`crate::timeline::LOOK_BACK`] before
+    /// the period or the round (what the assessment looks back at) up to the end.
     pub fn load_range(&self) -> TimeRange {
-        let start = self.period.since.min(self.round.since) - Duration::days(LOOKBACK_DAYS);
+        let start = self.period.since.min(self.round.since) - crate::timeline::LOOK_BACK;
         TimeRange::new(Some(start.to_utc()), Some(self.end().to_utc()))
     }
 }
@@ -438,15 +434,18 @@ pub enum Reason {
 
 /// A water (a system, or a tank) that needs attention.
 ///
-/// A system is one water: its advice must suit every species on it, so it is
-/// assessed as a whole (the most demanding species sets each limit, signs
-/// seen in any of its tanks count), and its tanks are listed by their own band.
+/// A system's reading is judged for each of its tanks; the most severe
+/// judgement stands for the system (as everywhere in tankwalk), and its tanks
+/// are listed by their own band.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Concern {
     /// The system, or the tank.
     pub target: Target,
     /// The tanks of the selection on it.
     pub tanks: Vec<String>,
+    /// The tank whose judgement stands for the water: on a system, the first
+    /// of the most severe (its species set the limits of the advice).
+    pub judged_for: String,
     /// Those tanks by their own band (against their own species), worst first.
     pub tank_bands: Vec<TankBands>,
     /// The species in it (names).

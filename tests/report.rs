@@ -10,11 +10,10 @@ use chrono::{DateTime, Duration, FixedOffset, TimeZone};
 use serde_json::Value;
 use ulid::Ulid;
 
-use tankwalk::core::units::AmmoniaBasis;
 use tankwalk::model::Facility;
-use tankwalk::model::record::{DeviceId, Event, EventKind, Reading, Record, RecordBody, Skip, Target, TotalAmmonia};
+use tankwalk::model::record::{Correction, DeviceId, Reading, Record, RecordBody, Target};
 use tankwalk::report::{self, Format, Request, Selection};
-use tankwalk::store::{SledStore, Store};
+use tankwalk::store::{Entry, MemStore, SledStore, Store};
 
 const ROOM: &str = "sample-rooms/harbourside-holding.toml";
 
@@ -47,85 +46,29 @@ fn record(n: u64, at: DateTime<FixedOffset>, operator: &str, body: RecordBody) -
 }
 
 /// Thirty days of generated rounds (up to yesterday), then this morning's
-/// round, walked by two people and not finished: the racks read as systems
-/// (rack B's ammonia up again), rack D skipped for a move, Q-1 read, Q-2
-/// skipped, Q-3 and Q-4 not reached; then a water change on rack B.
+/// round begun and not finished (`demo::round_in_progress`): racks A–C read as
+/// systems (rack B's ammonia up overnight), rack D skipped for a move, Q-1
+/// read, Q-2 skipped, Q-3 and Q-4 not reached, then a water change on rack B;
+/// and a reading after the report time that must not show.
 fn history(facility: &Facility) -> Vec<Record> {
     let mut records = tankwalk::demo::history(facility, device(), now(), 30, 2026);
-    let morning = offset().with_ymd_and_hms(2026, 12, 1, 7, 25, 0).unwrap();
-    let last_reading = |target: &Target| {
-        records
-            .iter()
-            .rev()
-            .filter_map(|r| r.body.as_reading())
-            .find(|r| &r.target == target && r.water_sample().is_some())
-            .cloned()
-            .unwrap()
-    };
-    let mut today = Vec::new();
-    let mut n = 1u64 << 40;
-    let mut next = || {
-        n += 1;
-        n
-    };
-    for (i, system) in ["RACK-A", "RACK-B", "RACK-C"].into_iter().enumerate() {
-        let target = Target::System(system.into());
-        let mut reading = last_reading(&target);
-        if system == "RACK-B" {
-            // Ammonia doubled overnight.
-            let tan = reading.measurements.tan_n_mg_l().unwrap();
-            reading.measurements.total_ammonia = Some(TotalAmmonia { value: tan * 2.0 + 0.4, basis: AmmoniaBasis::N });
-            reading.note = Some("water hazy, fish at the front glass".into());
-        }
-        let at = morning + Duration::minutes(6 * i as i64);
-        today.push(record(next(), at, "Ines Okafor", RecordBody::Reading(reading)));
-    }
-    today.push(record(
-        next(),
-        morning + Duration::minutes(20),
-        "Ines Okafor",
-        RecordBody::Skip(Skip {
-            target: Target::System("RACK-D".into()),
-            reason: "rack D being moved to the new stand".into(),
-        }),
-    ));
-    let q1 = last_reading(&Target::Tank("Q-1".into()));
-    today.push(record(next(), morning + Duration::minutes(31), "Anneke Sollis", RecordBody::Reading(q1)));
-    today.push(record(
-        next(),
-        morning + Duration::minutes(33),
-        "Anneke Sollis",
-        RecordBody::Skip(Skip { target: Target::Tank("Q-2".into()), reason: "emptied for cleaning".into() }),
-    ));
-    today.push(record(
-        next(),
-        morning + Duration::minutes(70),
-        "Tomasz Whitlow",
-        RecordBody::Event(Event {
-            target: Target::System("RACK-B".into()),
-            kind: EventKind::WaterChange {
-                percent: 30.0,
-                source_ph: Some(7.6),
-                source_tan_n_mg_l: None,
-                source_temp_c: Some(24.0),
-                dechlorinated: true,
-            },
-            note: Some("aged water from the vat".into()),
-        }),
-    ));
-    // A reading after the report time must not show.
+    records.extend(tankwalk::demo::round_in_progress(facility, device(), &records, now(), 2026));
     let mut later = Reading::new(Target::Tank("Q-3".into()));
     later.observations.deaths = 40;
-    today.push(record(next(), now() + Duration::hours(3), "Ines Okafor", RecordBody::Reading(later)));
-    records.extend(today);
+    records.push(record(1, now() + Duration::hours(3), "Ines Okafor", RecordBody::Reading(later)));
     records
+}
+
+/// Records as history entries without corrections.
+fn entries(records: Vec<Record>) -> Vec<Entry> {
+    records.into_iter().map(|original| Entry { original, corrections: Vec::new() }).collect()
 }
 
 fn report_of(selection: Selection) -> (Facility, report::RoundReport) {
     let facility = room();
     let records = history(&facility);
     let request = Request::round_ending(&facility, now(), selection);
-    let report = report::gather(&facility, &records, &request).unwrap();
+    let report = report::gather(&facility, &entries(records), &request).unwrap();
     (facility, report)
 }
 
@@ -172,12 +115,12 @@ fn json_form_has_the_round_the_tanks_to_act_on_the_trends_and_the_deaths() {
         .iter()
         .map(|w| (w["operator"].as_str().unwrap(), w["readings"].as_u64().unwrap(), w["skips"].as_u64().unwrap()))
         .collect();
-    assert_eq!(walkers, [("Ines Okafor", 3, 1), ("Anneke Sollis", 1, 1)], "events and later records are not the round");
+    assert_eq!(walkers, [("Ines Okafor", 3, 0), ("Anneke Sollis", 1, 2)], "events and later records are not the round");
     assert_eq!(j["round"]["started"], "2026-12-01T07:25:00+01:00");
     let tanks = &j["round"]["tanks"];
     let d07 = find(tanks, "tank", "D-07");
     assert_eq!((d07["status"].as_str(), d07["via_system"].as_bool()), (Some("skipped"), Some(true)));
-    assert_eq!(d07["reason"], "rack D being moved to the new stand");
+    assert_eq!(d07["reason"], "being moved to the new stand");
     assert_eq!(find(tanks, "tank", "Q-2")["reason"], "emptied for cleaning");
     assert_eq!(find(tanks, "tank", "Q-3")["status"], "not-reached");
     assert_eq!(find(tanks, "tank", "Q-4")["status"], "not-reached");
@@ -263,7 +206,7 @@ fn json_form_has_the_round_the_tanks_to_act_on_the_trends_and_the_deaths() {
 #[test]
 fn a_past_day_one_system_and_one_tank() {
     let facility = room();
-    let records = history(&facility);
+    let records = entries(history(&facility));
     let day = |d: u32, h: u32, m: u32, s: u32| offset().with_ymd_and_hms(2026, 11, d, h, m, s).unwrap();
     let request = Request::day(day(30, 0, 0, 0), day(30, 23, 59, 59), Selection::Room);
     let past = json(&report::gather(&facility, &records, &request).unwrap());
@@ -354,7 +297,7 @@ fn html_is_well_formed_self_contained_and_its_charts_are_svg_with_titles() {
     let text: String = page.root_element().text().collect();
     assert!(text.contains(tankwalk::CAUTION), "the caution is on the page");
     assert!(text.contains("Round report: Harbourside Tropicals holding room"));
-    assert!(text.contains("rack D being moved to the new stand"));
+    assert!(text.contains("being moved to the new stand"));
     assert_eq!(page.select(&select("article.concern")).count(), report.attention.len());
     assert_eq!(page.select(&select("li.chip")).count(), 52);
 
@@ -407,7 +350,7 @@ fn text_people_typed_is_escaped_everywhere() {
     sick.note = Some("<script>alert(1)</script> & [link](http://x.example) | *bold*".into());
     records.push(record(99, now() - Duration::minutes(5), "O'Brien <ops>", RecordBody::Reading(sick)));
     let request = Request::round_ending(&facility, now(), Selection::Room);
-    let report = report::gather(&facility, &records, &request).unwrap();
+    let report = report::gather(&facility, &entries(records), &request).unwrap();
     let html = Format::Html.render(&report);
     assert_self_contained(&html);
     assert!(html.contains("&lt;script&gt;alert(1)&lt;/script&gt; &amp; [link](http:"), "escaped, not dropped");
@@ -431,6 +374,58 @@ fn every_format_carries_the_caution() {
         assert!(flat.contains("Guidance only, not veterinary advice"), "{format}");
         assert!(flat.contains("call an aquatic veterinarian"), "{format}");
     }
+}
+
+#[test]
+fn corrections_are_reported_at_their_current_value_and_withdrawn_records_not_at_all() {
+    let facility = room();
+    let records = history(&facility);
+    let today = |target: &str| {
+        records
+            .iter()
+            .rev()
+            .filter(|r| r.body.as_reading().is_some())
+            .find(|r| {
+                r.taken_at.date_naive() == now().date_naive() && r.body.target().is_some_and(|t| t.id() == target)
+            })
+            .unwrap()
+            .clone()
+    };
+    let (q1, rack_b) = (today("Q-1"), today("RACK-B"));
+    let mut fixed = rack_b.body.as_reading().unwrap().clone();
+    fixed.measurements.ph = Some(8.4);
+    let corrections = [
+        record(
+            2,
+            now() - Duration::minutes(10),
+            "Tomasz Whitlow",
+            RecordBody::Correction(Correction {
+                supersedes: q1.id,
+                replacement: None,
+                reason: "entered on the wrong tank".into(),
+            }),
+        ),
+        record(
+            3,
+            now() - Duration::minutes(9),
+            "Tomasz Whitlow",
+            RecordBody::Correction(Correction {
+                supersedes: rack_b.id,
+                replacement: Some(Box::new(RecordBody::Reading(fixed))),
+                reason: "pH misread".into(),
+            }),
+        ),
+    ];
+    let mut store = MemStore::with_device(device());
+    store.append(&records).unwrap();
+    store.append(&corrections).unwrap();
+    let report =
+        report::from_store(&store, &facility, &Request::round_ending(&facility, now(), Selection::Room)).unwrap();
+    let j = json(&report);
+    assert_eq!(find(&j["round"]["tanks"], "tank", "Q-1")["status"], "not-reached", "its only reading was withdrawn");
+    let rack_b = j["attention"].as_array().unwrap().iter().find(|c| c["target"]["system"] == "RACK-B").unwrap();
+    assert_eq!(rack_b["reading"]["ph"], 8.4, "the corrected pH is the one judged");
+    assert_eq!(rack_b["reading"]["by"], "Ines Okafor", "still taken by the person who read it");
 }
 
 /// Headless Chromium, when it is installed (Debian's `chromium`).

@@ -6,6 +6,7 @@ use std::process::ExitCode;
 
 use anyhow::Result;
 use clap::{Args, ValueEnum};
+use tankwalk::core::units::AmmoniaBasis;
 use ulid::Ulid;
 
 use tankwalk::model::record::{
@@ -91,7 +92,10 @@ pub fn run(global: &GlobalArgs, args: &CorrectArgs) -> Result<ExitCode> {
     if args.kind.is_some() && (!args.reading.is_empty() || !args.clear.is_empty()) {
         return Err(bad_input!("an event kind and reading values cannot be corrected together"));
     }
-    let given = args.reading.measurements();
+    let room = super::room::resolve_room_optional(global)?;
+    let facility = room.as_ref().map(|(_, f)| f);
+    let kit_basis = facility.map_or(AmmoniaBasis::N, |f| f.room.kit_basis);
+    let given = args.reading.measurements(kit_basis);
     given.check().map_err(|e| input::refuse(args.reading.option_for(&e), &e))?;
     let given_observations = args.reading.observations(Observations::default())?;
     given_observations.check().map_err(|e| input::refuse("--deaths", &e))?;
@@ -101,7 +105,7 @@ pub fn run(global: &GlobalArgs, args: &CorrectArgs) -> Result<ExitCode> {
     let new_kind = args.kind.as_ref().map(EventKindCommand::to_kind).transpose()?;
     let new_place = match (&args.place.tank, &args.place.system) {
         (None, None) => None,
-        (tank, system) => Some(input::locate(global.room.as_deref(), tank.as_deref(), system.as_deref())?),
+        (tank, system) => Some(input::locate(facility, tank.as_deref(), system.as_deref())?),
     };
     let withdrawal = Correction { supersedes: args.id, replacement: None, reason: reason.clone() };
     let provisional = Record::new(DeviceId(Ulid::nil()), operator.clone(), made_at, RecordBody::Correction(withdrawal));
@@ -126,7 +130,7 @@ pub fn run(global: &GlobalArgs, args: &CorrectArgs) -> Result<ExitCode> {
                 if new_kind.is_some() {
                     return Err(bad_input!("{} is a reading: an event kind does not apply", args.id));
                 }
-                apply_reading_changes(args, &mut reading.measurements);
+                apply_reading_changes(args, kit_basis, &mut reading.measurements);
                 reading.observations = args.reading.observations(reading.observations)?;
                 if let Some(note) = &args.note {
                     reading.note = Some(note.clone()).filter(|n| !n.trim().is_empty());
@@ -184,15 +188,16 @@ pub fn run(global: &GlobalArgs, args: &CorrectArgs) -> Result<ExitCode> {
     let warnings = input::warning_lines(&warnings, |f| args.reading.option_for_field(f).to_string());
     store.append(std::slice::from_ref(&record))?;
     let entry = history::entry(&store, record.id)?.ok_or_else(|| anyhow::anyhow!("the saved correction is missing"))?;
+    let assessment = super::record::assess_entry(&store, facility, &entry)?;
     drop(store);
-    let system = new_place.and_then(|p| p.system);
-    super::record::print_saved(&entry, system, warnings, args.json)?;
+    let _ = new_place;
+    super::record::print_saved(&entry, facility, assessment.as_ref(), warnings, args.json)?;
     Ok(ExitCode::SUCCESS)
 }
 
 /// Puts the given values over `m` and removes the cleared ones.
-fn apply_reading_changes(args: &CorrectArgs, m: &mut Measurements) {
-    let given = args.reading.measurements();
+fn apply_reading_changes(args: &CorrectArgs, kit_basis: AmmoniaBasis, m: &mut Measurements) {
+    let given = args.reading.measurements(kit_basis);
     fn over<T>(slot: &mut Option<T>, value: Option<T>) {
         if value.is_some() {
             *slot = value;

@@ -1,27 +1,30 @@
 //! How records and their history are shown: one JSON object per entry (the
 //! same for `record`, `event`, `correct` and `log`) and one text line per entry.
 
-use std::path::Path;
-
 use chrono::{DateTime, FixedOffset};
 use serde::Serialize;
 use ulid::Ulid;
 
 use tankwalk::core::band::{Band, BandEdges};
 use tankwalk::core::sample::{self, Derived};
+use tankwalk::model::Facility;
 use tankwalk::model::record::{DeviceId, EventKind, Measurements, Reading, Record, RecordBody};
 use tankwalk::numfmt::sig;
+use tankwalk::rules::latent::Latent;
+use tankwalk::rules::trend::Trend;
+use tankwalk::rules::{Action, Assessment, Biofilter, Warning};
 use tankwalk::store::Entry;
 
 use super::input;
 
-/// Where the band edges come from, as printed.
-pub const BAND_EDGES_SOURCE: &str = "tankwalk defaults";
+/// Where the band edges come from when no room is known, as printed.
+pub const BAND_EDGES_SOURCE: &str = "tankwalk defaults (no room: give --room FILE for species edges)";
 
-/// NH3 and band of a reading, when it has temperature, pH and total ammonia.
-///
-/// Uses the default band edges and sea-level oxygen figures until the room
-/// gives each tank's species edges and the room's elevation.
+/// Where the band edges come from when the room is known.
+pub const SPECIES_EDGES_SOURCE: &str = "species";
+
+/// NH3 and band of a reading without a room: default band edges, fresh water
+/// unless salinity was measured, sea-level oxygen figures.
 pub fn derived(reading: &Reading) -> Option<Derived> {
     reading.water_sample().map(|s| sample::derive(&s, &BandEdges::DEFAULT, 0.0))
 }
@@ -62,14 +65,71 @@ pub struct EntryJson {
     pub deaths: Option<u32>,
     pub event: Option<EventKind>,
     pub note: Option<String>,
+    /// The assessment, when the room is known: latent band, trend, biofilter, actions.
+    #[serde(flatten, skip_serializing_if = "Option::is_none")]
+    pub advice: Option<Advice>,
     /// The measurements exactly as entered (value and unit or kit basis).
     pub measurements: Option<Measurements>,
     /// When corrected: every record of the chain, the original first, exactly as stored.
     pub trail: Vec<Record>,
 }
 
-/// The JSON view of `entry`; `room` gives a tank's system.
-pub fn entry_json(entry: &Entry, room: Option<&Path>) -> EntryJson {
+/// The assessment's fields in an entry's JSON (band and the NH3 figures are
+/// the entry's own fields).
+#[derive(Debug, Clone, Serialize)]
+pub struct Advice {
+    /// Band of the NH3 alone, before raising it for signs in the fish.
+    pub measured_band: Option<Band>,
+    /// Why the band was raised.
+    pub raised_by: Vec<String>,
+    /// Band if pH rose to the source water's pH (or by 0.5).
+    pub latent_band: Option<Band>,
+    /// The NH3 and pH behind `latent_band`.
+    pub latent: Option<Latent>,
+    /// Trend of NH3-N over the last readings.
+    pub trend: Option<Trend>,
+    /// Trend of total ammonia over the last readings.
+    pub tan_trend: Option<Trend>,
+    /// The biofilter's state.
+    pub biofilter: Biofilter,
+    /// Suggested actions, most urgent first, with quantities and reasons.
+    pub actions: Vec<Action>,
+    /// What not to do.
+    pub do_not: Vec<Warning>,
+    /// Guidance, not veterinary advice.
+    pub caution: &'static str,
+}
+
+impl Advice {
+    /// The advice part of an assessment.
+    pub fn of(a: &Assessment) -> Advice {
+        Advice {
+            measured_band: a.measured_band,
+            raised_by: a.raised_by.clone(),
+            latent_band: a.latent.map(|l| l.band),
+            latent: a.latent,
+            trend: a.trend,
+            tan_trend: a.tan_trend,
+            biofilter: a.biofilter.clone(),
+            actions: a.actions.clone(),
+            do_not: a.warnings.clone(),
+            caution: a.caution,
+        }
+    }
+}
+
+/// NH3 figures of a reading: the assessment's (the tank's salinity and the
+/// room's elevation) when there is one, else [`derived`].
+pub fn nh3_of(reading: &Reading, assessment: Option<&Assessment>) -> Option<(f64, f64, f64, Option<Band>)> {
+    match assessment.and_then(|a| a.figures.map(|f| (f, a.band))) {
+        Some((f, band)) => Some((f.nh3_fraction, f.nh3_mg_l, f.nh3_n_mg_l, band)),
+        None => derived(reading).map(|d| (d.toxic.fraction, d.toxic.nh3_mg_l, d.toxic.nh3_n_mg_l, Some(d.band))),
+    }
+}
+
+/// The JSON view of `entry`; `room` gives a tank's system, `assessment` the
+/// advice (when the room is known).
+pub fn entry_json(entry: &Entry, room: Option<&Facility>, assessment: Option<&Assessment>) -> EntryJson {
     let body = entry.current().unwrap_or_else(|| entry.last_value());
     let target = body.target().or(entry.original.body.target());
     let tank = target.and_then(|t| t.tank()).map(str::to_string);
@@ -79,7 +139,8 @@ pub fn entry_json(entry: &Entry, room: Option<&Path>) -> EntryJson {
         .or_else(|| tank.as_deref().and_then(|t| input::system_of(room, t)));
     let reading = body.as_reading();
     let m = reading.map(|r| &r.measurements);
-    let d = reading.and_then(derived);
+    let d = reading.and_then(|r| nh3_of(r, assessment));
+    let edges_source = if assessment.is_some() { SPECIES_EDGES_SOURCE } else { BAND_EDGES_SOURCE };
     EntryJson {
         id: entry.original.id,
         current_id: entry.current_id(),
@@ -101,15 +162,16 @@ pub fn entry_json(entry: &Entry, room: Option<&Path>) -> EntryJson {
         do_mg_l: m.and_then(|m| m.dissolved_oxygen_mg_l),
         chloride_mg_l: m.and_then(|m| m.chloride_mg_l),
         alkalinity_mg_l_caco3: m.and_then(Measurements::alkalinity_mg_l_caco3),
-        nh3_fraction: d.map(|d| d.toxic.fraction),
-        nh3_mg_l: d.map(|d| d.toxic.nh3_mg_l),
-        nh3_n_mg_l: d.map(|d| d.toxic.nh3_n_mg_l),
-        band: d.map(|d| d.band),
-        band_edges_source: d.map(|_| BAND_EDGES_SOURCE),
+        nh3_fraction: d.map(|d| d.0),
+        nh3_mg_l: d.map(|d| d.1),
+        nh3_n_mg_l: d.map(|d| d.2),
+        band: d.and_then(|d| d.3),
+        band_edges_source: d.map(|_| edges_source),
         signs: reading.map(|r| r.observations.signs().into_iter().map(|s| s.name()).collect()).unwrap_or_default(),
         deaths: reading.map(|r| r.observations.deaths),
         event: body.as_event().map(|e| e.kind.clone()),
         note: body.note().map(str::to_string),
+        advice: assessment.map(Advice::of),
         measurements: m.cloned(),
         trail: if entry.is_corrected() { entry.trail().cloned().collect() } else { Vec::new() },
     }
@@ -121,7 +183,7 @@ pub fn when(at: &DateTime<FixedOffset>) -> String {
 }
 
 /// What a reading says, briefly: `25.0 °C  pH 8.00  TAN-N 1.00  NH3-N 0.0537  gasping, 2 dead`.
-pub fn describe_reading(reading: &Reading) -> String {
+pub fn describe_reading(reading: &Reading, assessment: Option<&Assessment>) -> String {
     let m = &reading.measurements;
     let mut parts = Vec::new();
     if let Some(t) = m.temp_c() {
@@ -133,8 +195,8 @@ pub fn describe_reading(reading: &Reading) -> String {
     if let Some(tan) = m.tan_n_mg_l() {
         parts.push(format!("TAN-N {}", sig(tan, 3)));
     }
-    if let Some(d) = derived(reading) {
-        parts.push(format!("NH3-N {}", sig(d.toxic.nh3_n_mg_l, 3)));
+    if let Some((_, _, nh3_n, _)) = nh3_of(reading, assessment) {
+        parts.push(format!("NH3-N {}", sig(nh3_n, 3)));
     }
     if let Some(v) = m.nitrite_n_mg_l() {
         parts.push(format!("NO2-N {}", sig(v, 3)));
@@ -203,12 +265,12 @@ pub fn describe_event(kind: &EventKind) -> String {
 }
 
 /// What a record body says, in words.
-pub fn describe(body: &RecordBody) -> String {
+pub fn describe(body: &RecordBody, assessment: Option<&Assessment>) -> String {
     match body {
-        RecordBody::Reading(r) => describe_reading(r),
+        RecordBody::Reading(r) => describe_reading(r, assessment),
         RecordBody::Event(e) => describe_event(&e.kind),
         RecordBody::Correction(c) => match c.replacement.as_deref() {
-            Some(b) => describe(b),
+            Some(b) => describe(b, assessment),
             None => "withdrawn".into(),
         },
         RecordBody::Skip(s) => format!("skipped: {}", s.reason),

@@ -7,7 +7,6 @@ use clap::Args;
 use ulid::Ulid;
 
 use tankwalk::model::record::{DeviceId, Event, Field, Record, RecordBody};
-use tankwalk::store::{Entry, Store};
 
 use super::GlobalArgs;
 use super::input::{self, EventKindCommand, TargetArgs, WhoWhenArgs};
@@ -31,12 +30,14 @@ pub struct EventArgs {
 
 pub fn run(global: &GlobalArgs, args: &EventArgs) -> Result<ExitCode> {
     // Everything is parsed and checked before the store is opened.
-    let place = input::locate(global.room.as_deref(), args.place.tank.as_deref(), args.place.system.as_deref())?;
+    let room = super::room::resolve_room_optional(global)?;
+    let facility = room.as_ref().map(|(_, f)| f);
+    let place = input::locate(facility, args.place.tank.as_deref(), args.place.system.as_deref())?;
     let operator = args.who.operator()?;
     let taken_at = args.who.taken_at(input::now_local())?;
     let kind = args.kind.to_kind()?;
     let event = Event { target: place.target.clone(), kind, note: args.note.clone().filter(|n| !n.trim().is_empty()) };
-    let mut record = Record::new(DeviceId(Ulid::nil()), operator, taken_at, RecordBody::Event(event));
+    let record = Record::new(DeviceId(Ulid::nil()), operator, taken_at, RecordBody::Event(event));
     record.check().map_err(|e| {
         let option = match e.field() {
             Field::Note => "--note",
@@ -46,12 +47,5 @@ pub fn run(global: &GlobalArgs, args: &EventArgs) -> Result<ExitCode> {
         input::refuse(option, &e)
     })?;
 
-    let mut store = super::open_store(global)?;
-    record.device = store.device();
-    store.append(std::slice::from_ref(&record))?;
-    drop(store);
-
-    let entry = Entry { original: record, corrections: Vec::new() };
-    super::record::print_saved(&entry, place.system.clone(), Vec::new(), args.json)?;
-    Ok(ExitCode::SUCCESS)
+    super::record::save_and_print(global, facility, record, Vec::new(), args.json)
 }

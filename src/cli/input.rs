@@ -4,14 +4,13 @@
 //! Everything here is parsed and checked before any command opens the store,
 //! and every refusal names the option it is about.
 
-use std::path::Path;
-
 use anyhow::Result;
 use chrono::{DateTime, Duration, FixedOffset, Local, NaiveDate, NaiveDateTime, NaiveTime, SubsecRound, TimeZone, Utc};
 use clap::{ArgGroup, Args, Subcommand};
 
 use tankwalk::core::salinity::SalinityReading;
 use tankwalk::core::units::{self, AmmoniaBasis, NitrogenIonBasis};
+use tankwalk::model::Facility;
 use tankwalk::model::record::{
     Alkalinity, AlkalinityUnit, EventKind, Field, FieldWarning, Measurements, MedicationClass, NitrogenReading,
     Observations, RecordError, Sign, Target, Temperature, TotalAmmonia,
@@ -59,32 +58,66 @@ impl Located {
     }
 }
 
-/// THE ROOM SEAM: resolves `--tank`/`--system` into a place.
-///
-/// Today the ids are taken as given (checked for form only), and a tank's
-/// system is known only when `--system` is given with it. Once facility files
-/// load, this is the one place that checks the ids against the room (`room`
-/// is the `--room` file), refuses unknown ones with the list of known ids,
-/// checks that a given system is the tank's, and fills in the tank's system.
-pub fn locate(room: Option<&Path>, tank: Option<&str>, system: Option<&str>) -> Result<Located> {
-    let _ = room;
+/// Resolves `--tank`/`--system` into a place, against the room when one is
+/// known: unknown ids are refused with the closest known one, a system given
+/// with a tank must be the tank's, and a tank's system is filled in. Without
+/// a room the ids are taken as given (checked for form only).
+pub fn locate(room: Option<&Facility>, tank: Option<&str>, system: Option<&str>) -> Result<Located> {
     let checked = |target: Target, option: &str| -> Result<Target> {
         target.check().map_err(|e| bad_input!("{option}: {}", e.message()))?;
         Ok(target)
     };
     let tank = tank.map(|t| checked(Target::Tank(t.to_string()), "--tank")).transpose()?;
     let system = system.map(|s| checked(Target::System(s.to_string()), "--system")).transpose()?;
+    let (mut tank, mut system) = (tank.map(|t| t.id().to_string()), system.map(|s| s.id().to_string()));
+    if let Some(facility) = room {
+        if let Some(id) = &tank {
+            let Some(known) = facility.tank(id) else {
+                let ids: Vec<&str> = facility.tanks.iter().map(|t| t.id.as_str()).collect();
+                return Err(bad_input!("--tank: no tank '{id}' in room '{}'{}", facility.room.name, closest(id, &ids)));
+            };
+            let own = facility.system_of(known).map(|s| s.id.as_str().to_string());
+            if let Some(given) = &system
+                && own.as_deref().is_none_or(|o| !o.eq_ignore_ascii_case(given))
+            {
+                let is = own.map_or("is standalone".to_string(), |o| format!("is on system {o}"));
+                return Err(bad_input!("--system: tank {} {is}, not on '{given}'", known.id));
+            }
+            tank = Some(known.id.as_str().to_string());
+            system = facility.system_of(known).map(|s| s.id.as_str().to_string());
+        } else if let Some(id) = &system {
+            let Some(known) = facility.system(id) else {
+                let ids: Vec<&str> = facility.systems.iter().map(|s| s.id.as_str()).collect();
+                return Err(bad_input!(
+                    "--system: no system '{id}' in room '{}'{}",
+                    facility.room.name,
+                    closest(id, &ids)
+                ));
+            };
+            system = Some(known.id.as_str().to_string());
+        }
+    }
     let target = match (&tank, &system) {
-        (Some(t), _) => t.clone(),
-        (None, Some(s)) => s.clone(),
+        (Some(t), _) => Target::Tank(t.clone()),
+        (None, Some(s)) => Target::System(s.clone()),
         (None, None) => return Err(bad_input!("say where: give --tank ID or --system ID")),
     };
-    Ok(Located { target, tank: tank.map(|t| t.id().to_string()), system: system.map(|s| s.id().to_string()) })
+    Ok(Located { target, tank, system })
 }
 
-/// The system of `tank` for display, via [`locate`] (none known until rooms load).
-pub fn system_of(room: Option<&Path>, tank: &str) -> Option<String> {
-    locate(room, Some(tank), None).ok().and_then(|l| l.system)
+/// " (closest: X)" for the known id nearest to `id`, or nothing.
+fn closest(id: &str, known: &[&str]) -> String {
+    known
+        .iter()
+        .min_by_key(|k| strsim::damerau_levenshtein(&k.to_lowercase(), &id.to_lowercase()))
+        .map(|k| format!(" (closest: {k})"))
+        .unwrap_or_default()
+}
+
+/// The system of `tank` in the room, when it has one.
+pub fn system_of(room: Option<&Facility>, tank: &str) -> Option<String> {
+    let facility = room?;
+    facility.tank(tank).and_then(|t| facility.system_of(t)).map(|s| s.id.as_str().to_string())
 }
 
 /// `--operator` and `--taken-at`.
@@ -286,7 +319,8 @@ pub struct ReadingArgs {
 
 impl ReadingArgs {
     /// The measurements given, as entered.
-    pub fn measurements(&self) -> Measurements {
+    /// The measurements as entered; total ammonia on `--tan-as`, else `kit_basis` (the room's).
+    pub fn measurements(&self, kit_basis: AmmoniaBasis) -> Measurements {
         let temperature = match (self.temp_c, self.temp_f) {
             (Some(c), _) => Some(Temperature::celsius(c)),
             (None, Some(f)) => Some(Temperature::fahrenheit(f)),
@@ -306,7 +340,7 @@ impl ReadingArgs {
             temperature,
             ph: self.ph,
             // The room's kit basis becomes the default once rooms load (see `locate`).
-            total_ammonia: self.tan.map(|value| TotalAmmonia { value, basis: self.tan_as.unwrap_or_default() }),
+            total_ammonia: self.tan.map(|value| TotalAmmonia { value, basis: self.tan_as.unwrap_or(kit_basis) }),
             nitrite: self.nitrite.map(|value| NitrogenReading { value, basis: self.nitrite_as.unwrap_or_default() }),
             nitrate: self.nitrate.map(|value| NitrogenReading { value, basis: self.nitrate_as.unwrap_or_default() }),
             salinity,
@@ -352,7 +386,7 @@ impl ReadingArgs {
 
     /// True when no reading option was given.
     pub fn is_empty(&self) -> bool {
-        self.measurements().is_empty() && self.observe.is_empty() && self.deaths.is_none()
+        self.measurements(AmmoniaBasis::N).is_empty() && self.observe.is_empty() && self.deaths.is_none()
     }
 
     /// The option a refused value came from.

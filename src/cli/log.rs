@@ -6,7 +6,10 @@ use std::process::ExitCode;
 use anyhow::Result;
 use clap::{Args, ValueEnum};
 
+use tankwalk::model::record::RecordBody;
+use tankwalk::rules::Assessment;
 use tankwalk::store::{Entry, TimeRange, history};
+use tankwalk::timeline::Assessor;
 
 use super::entry_view::{self, EntryJson};
 use super::input::{self, Bound, TargetArgs};
@@ -61,15 +64,17 @@ pub fn run(global: &GlobalArgs, args: &LogArgs) -> Result<ExitCode> {
     {
         return Err(bad_input!("--since is after --until"));
     }
-    let targets = match (&args.place.tank, &args.place.system) {
-        (None, None) => Vec::new(),
-        (tank, system) => input::locate(global.room.as_deref(), tank.as_deref(), system.as_deref())?.history_targets(),
+    let room = super::room::resolve_room_optional(global)?;
+    let facility = room.as_ref().map(|(_, f)| f);
+    let place = match (&args.place.tank, &args.place.system) {
+        (None, None) => None,
+        (tank, system) => Some(input::locate(facility, tank.as_deref(), system.as_deref())?),
     };
+    let targets = place.as_ref().map(input::Located::history_targets).unwrap_or_default();
     let range = TimeRange::new(since.map(input::utc), until.map(input::utc));
 
     let store = super::open_store(global)?;
     let mut entries: Vec<Entry> = history::entries(&store, &targets, &range)?;
-    drop(store);
 
     entries.retain(|e| args.withdrawn || !e.is_withdrawn());
     if let Some(kind) = args.kind {
@@ -82,11 +87,32 @@ pub fn run(global: &GlobalArgs, args: &LogArgs) -> Result<ExitCode> {
     if let Some(limit) = args.limit {
         entries.truncate(limit);
     }
+    // Judge each reading for the tank asked about (a system reading then counts
+    // for that tank), or for its own tank or system.
+    let assessments: Vec<Option<Assessment>> = match facility {
+        None => vec![None; entries.len()],
+        Some(facility) => {
+            let mut assessor = Assessor::new(&store, facility, range);
+            let mut out = Vec::with_capacity(entries.len());
+            for entry in &entries {
+                let assessment = match entry.current() {
+                    Some(RecordBody::Reading(reading)) => {
+                        let target = place.as_ref().map_or(&reading.target, |p| &p.target);
+                        assessor.assess(target, reading, entry.original.taken_at.with_timezone(&chrono::Utc))?
+                    }
+                    _ => None,
+                };
+                out.push(assessment);
+            }
+            out
+        }
+    };
+    drop(store);
 
-    let room = global.room.as_deref();
     let mut out = std::io::stdout().lock();
     if args.json {
-        let views: Vec<EntryJson> = entries.iter().map(|e| entry_view::entry_json(e, room)).collect();
+        let views: Vec<EntryJson> =
+            entries.iter().zip(&assessments).map(|(e, a)| entry_view::entry_json(e, facility, a.as_ref())).collect();
         serde_json::to_writer_pretty(&mut out, &views)?;
         writeln!(out)?;
         return Ok(ExitCode::SUCCESS);
@@ -97,12 +123,13 @@ pub fn run(global: &GlobalArgs, args: &LogArgs) -> Result<ExitCode> {
     }
     let places: Vec<String> = entries.iter().map(|e| e.target().map(|t| t.to_string()).unwrap_or_default()).collect();
     let width = places.iter().map(|p| p.chars().count()).max().unwrap_or(0);
-    for (entry, place) in entries.iter().zip(&places) {
+    for ((entry, place), assessment) in entries.iter().zip(&places).zip(&assessments) {
+        let assessment = assessment.as_ref();
         let (what, band) = match entry.current() {
             None => ("withdrawn".to_string(), String::new()),
             Some(body) => {
-                let band = body.as_reading().and_then(entry_view::derived).map(|d| d.band);
-                (entry_view::describe(body), entry_view::band_text(band))
+                let band = body.as_reading().and_then(|r| entry_view::nh3_of(r, assessment)).and_then(|d| d.3);
+                (entry_view::describe(body, assessment), entry_view::band_text(band))
             }
         };
         let mark = if entry.is_corrected() { "*" } else { " " };

@@ -52,6 +52,18 @@ pub fn resolve_room(global: &GlobalArgs) -> Result<(PathBuf, Facility)> {
     }
 }
 
+/// The facility, when one is given or remembered; `None` when neither (the
+/// record commands then take tank and system ids as given).
+pub fn resolve_room_optional(global: &GlobalArgs) -> Result<Option<(PathBuf, Facility)>> {
+    if global.room.is_none() {
+        let memo = global.data_dir()?.join(LAST_ROOM_FILE);
+        if !memo.exists() {
+            return Ok(None);
+        }
+    }
+    resolve_room(global).map(Some)
+}
+
 /// Loads a facility file, turning failures into an input error that names it.
 fn load(path: &Path, remembered_in: Option<&Path>) -> Result<Facility> {
     let whose = match remembered_in {

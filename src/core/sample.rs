@@ -24,6 +24,18 @@ pub struct WaterSample {
     pub do_mg_l: Option<f64>,
 }
 
+impl WaterSample {
+    /// The inputs of the ammonia equilibrium.
+    pub fn ammonia_inputs(&self) -> AmmoniaInputs {
+        AmmoniaInputs { tan_n_mg_l: self.tan_n_mg_l, ph: self.ph, temp_c: self.temp_c, salinity_ppt: self.salinity_ppt }
+    }
+
+    /// The un-ionized ammonia of this sample.
+    pub fn toxic(&self) -> ToxicAmmonia {
+        toxic_ammonia(&self.ammonia_inputs())
+    }
+}
+
 /// Figures derived from a [`WaterSample`]; computed, never stored.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Derived {
@@ -44,12 +56,7 @@ pub struct Derived {
 
 /// Derives every figure for `sample` against `edges`, at `elevation_m`.
 pub fn derive(sample: &WaterSample, edges: &BandEdges, elevation_m: f64) -> Derived {
-    let toxic = toxic_ammonia(&AmmoniaInputs {
-        tan_n_mg_l: sample.tan_n_mg_l,
-        ph: sample.ph,
-        temp_c: sample.temp_c,
-        salinity_ppt: sample.salinity_ppt,
-    });
+    let toxic = sample.toxic();
     let fresh = sample.salinity_ppt <= EPA_FRESHWATER_MAX_SALINITY;
     let pressure = oxygen::pressure_at_elevation_atm(elevation_m);
     let do_saturation_mg_l = oxygen::saturation(sample.temp_c, sample.salinity_ppt, pressure);

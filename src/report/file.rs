@@ -7,8 +7,8 @@ use std::path::Path;
 use super::{ReportError, Request, RoundReport, Selection, gather};
 use crate::model::facility::Facility;
 use crate::model::record::Target;
-use crate::store::Store;
-use crate::tank_history;
+use crate::store::{Store, history};
+use crate::timeline::targets_of;
 
 /// Reads the records the request needs from `store` and gathers the report.
 pub fn from_store<S: Store + ?Sized>(
@@ -20,7 +20,7 @@ pub fn from_store<S: Store + ?Sized>(
     // nothing and `gather` names it.
     let targets: Vec<Target> = match &request.selection {
         Selection::Room => Vec::new(),
-        Selection::Tank(id) => facility.tank(id).map(tank_history::targets_of).unwrap_or_default(),
+        Selection::Tank(id) => facility.tank(id).map(|t| targets_of(facility, t)).unwrap_or_default(),
         Selection::System(id) => facility
             .system(id)
             .map(|system| {
@@ -31,8 +31,8 @@ pub fn from_store<S: Store + ?Sized>(
             .unwrap_or_default(),
     };
     let known = !targets.is_empty() || request.selection == Selection::Room;
-    let records = if known { tank_history::load(store, &targets, &request.load_range())? } else { Vec::new() };
-    gather(facility, &records, request)
+    let entries = if known { history::entries(store, &targets, &request.load_range())? } else { Vec::new() };
+    gather(facility, &entries, request)
 }
 
 /// Writes `contents` to `path` through a temporary file in the same folder,

@@ -1,9 +1,10 @@
 //! From the facility, the records and a request to the report's data. Pure:
 //! no clock, no store, no I/O.
 
-use std::collections::BTreeMap;
+use std::collections::{BTreeMap, HashMap};
 
 use chrono::{DateTime, Duration, FixedOffset, Utc};
+use ulid::Ulid;
 
 use super::{
     Concern, Counts, EventView, Measure, Range, ReadingView, Reason, ReportError, Request, RoundReport, RoundSummary,
@@ -16,14 +17,15 @@ use crate::model::record::{Event, Reading, Record, RecordBody, Target};
 use crate::model::species::EffectiveProfile;
 use crate::rules::Assessment;
 use crate::rules::trend::{TrendWindow, trend};
-use crate::tank_history::TankHistory;
+use crate::store::Entry;
+use crate::timeline::{Timeline, targets_of};
 
-/// Gathers the report's data from the records (current values after
-/// corrections; see [`crate::tank_history::current_records`]).
+/// Gathers the report's data from history entries (each record with its
+/// corrections: the current values are reported, withdrawn records are not).
 ///
-/// Records after the end of the round and of the period are ignored, so a
-/// report on a past day shows that day as it was then.
-pub fn gather(facility: &Facility, records: &[Record], request: &Request) -> Result<RoundReport, ReportError> {
+/// Records taken after the end of the round and of the period are ignored,
+/// so a report on a past day shows that day as it was recorded.
+pub fn gather(facility: &Facility, entries: &[Entry], request: &Request) -> Result<RoundReport, ReportError> {
     for window in [&request.round, &request.period] {
         if window.since > window.until {
             return Err(ReportError::EmptyPeriod { since: window.since, until: window.until });
@@ -33,27 +35,25 @@ pub fn gather(facility: &Facility, records: &[Record], request: &Request) -> Res
     let selection = canonical(&request.selection, &selected, facility);
     let end = request.end();
     let offset = *request.round.until.offset();
-    let records: Vec<Record> = records
-        .iter()
-        .filter(|r| r.taken_at <= end)
-        .map(|r| Record { taken_at: r.taken_at.with_timezone(&offset), ..r.clone() })
-        .collect();
+    let entries: Vec<&Entry> = entries.iter().filter(|e| e.original.taken_at <= end).collect();
+    let records = current_records(&entries, offset);
+    let by_id: HashMap<Ulid, &Record> = records.iter().map(|r| (r.id, r)).collect();
     let units = Units {
         temperature: facility.room.temperature_unit.symbol(),
         volume: facility.room.volume_unit.symbol(),
         temperature_unit: facility.room.temperature_unit,
     };
     let interval = Duration::hours(i64::from(facility.room.round_interval_hours));
-    let gatherer = Gatherer { facility, request, records: &records, units, interval, offset };
+    let gatherer = Gatherer { facility, request, records: &records, by_id, units, interval, offset };
 
-    let tanks: Vec<TankFacts> = selected.iter().map(|tank| gatherer.tank_facts(tank)).collect();
+    let tanks: Vec<TankFacts> = selected.iter().map(|tank| gatherer.tank_facts(tank, &entries)).collect();
     let round = gatherer.round(&tanks);
     let attention = gatherer.attention(&tanks);
     let sightings = gatherer.sightings(&selected);
     let concerning: Vec<&str> = attention.iter().flat_map(|c| c.tanks.iter().map(String::as_str)).collect();
     let (waters, not_charted) = gatherer.waters(&selection, &selected, &concerning, &sightings);
 
-    let targets = targets_of_tanks(&selected);
+    let targets = targets_of_tanks(facility, &selected);
     let in_period = |r: &&Record| request.period.contains(&r.taken_at);
     let about = |r: &&Record| r.body.target().is_some_and(|t| targets.contains(t));
     let readings = records.iter().filter(in_period).filter(about).filter(|r| r.body.as_reading().is_some()).count();
@@ -154,10 +154,10 @@ fn canonical(selection: &Selection, selected: &[&Tank], facility: &Facility) -> 
 }
 
 /// Every tank of `tanks` and every system they are on.
-fn targets_of_tanks(tanks: &[&Tank]) -> Vec<Target> {
+fn targets_of_tanks(facility: &Facility, tanks: &[&Tank]) -> Vec<Target> {
     let mut targets: Vec<Target> = Vec::new();
     for tank in tanks {
-        for target in crate::tank_history::targets_of(tank) {
+        for target in targets_of(facility, tank) {
             if !targets.contains(&target) {
                 targets.push(target);
             }
@@ -166,10 +166,66 @@ fn targets_of_tanks(tanks: &[&Tank]) -> Vec<Target> {
     targets
 }
 
+/// The current value of each entry that is not withdrawn, oldest first, as a
+/// record with the original's id, device, operator and time (shown in `offset`).
+fn current_records(entries: &[&Entry], offset: FixedOffset) -> Vec<Record> {
+    let mut records: Vec<Record> = entries
+        .iter()
+        .filter_map(|entry| {
+            let body = entry.current()?;
+            if matches!(body, RecordBody::Correction(_)) {
+                return None;
+            }
+            let taken_at = entry.original.taken_at.with_timezone(&offset);
+            Some(Record { body: body.clone(), taken_at, ..entry.original.clone() })
+        })
+        .collect();
+    records.sort_by_key(Record::time_key);
+    records
+}
+
+/// What is known of a tank at the end of the report: the reading assessed
+/// (the newest with the chemistry, carrying what was seen of the fish in
+/// every reading around it) and when the tank was last looked at.
+#[derive(Debug, Clone)]
+struct TankState {
+    /// When the reading assessed was taken.
+    at: DateTime<Utc>,
+    /// Its id (the original's).
+    id: Ulid,
+    /// The reading assessed.
+    reading: Reading,
+    /// When the newest reading was taken.
+    last_seen: DateTime<Utc>,
+}
+
+/// The tank's state as of `at`: the readings of its timeline within `window`
+/// before the newest one up to `at`. Measurements come from the newest
+/// complete sample (temperature, pH and total ammonia) among them, else the
+/// newest reading; signs and deaths from all of them; the note from the newest
+/// that has one. `None` when nothing was read by then.
+fn state_at(timeline: &Timeline, at: DateTime<Utc>, window: Duration) -> Option<TankState> {
+    let upto: Vec<&(DateTime<Utc>, Ulid, Reading)> = timeline.readings.iter().filter(|r| r.0 <= at).collect();
+    let newest = *upto.last()?;
+    let recent: Vec<&(DateTime<Utc>, Ulid, Reading)> =
+        upto.iter().rev().take_while(|r| newest.0 - r.0 <= window).copied().collect();
+    let chemistry = recent.iter().find(|r| r.2.water_sample().is_some()).copied().unwrap_or(newest);
+    let mut reading = Reading::new(chemistry.2.target.clone());
+    reading.measurements = chemistry.2.measurements.clone();
+    for r in &recent {
+        for sign in r.2.observations.signs() {
+            reading.observations.set(sign, true);
+        }
+        reading.observations.deaths = reading.observations.deaths.saturating_add(r.2.observations.deaths);
+    }
+    reading.note = recent.iter().find_map(|r| r.2.note.clone());
+    Some(TankState { at: chemistry.0, id: chemistry.1, reading, last_seen: newest.0 })
+}
+
 /// What is known of one tank.
 struct TankFacts<'a> {
     tank: &'a Tank,
-    history: TankHistory<'a>,
+    state: Option<TankState>,
     assessment: Option<Assessment>,
 }
 
@@ -177,27 +233,36 @@ struct Gatherer<'a> {
     facility: &'a Facility,
     request: &'a Request,
     records: &'a [Record],
+    by_id: HashMap<Ulid, &'a Record>,
     units: Units,
     interval: Duration,
     offset: FixedOffset,
 }
 
 impl<'a> Gatherer<'a> {
-    fn tank_facts(&self, tank: &'a Tank) -> TankFacts<'a> {
-        let history = TankHistory::new(tank, self.records);
-        let state = history.state_at(self.request.end().to_utc(), self.interval);
-        let assessment = state.as_ref().map(|s| history.assess_state(self.facility, s, &self.request.config));
-        TankFacts { tank, history, assessment }
+    fn tank_facts(&self, tank: &'a Tank, entries: &[&Entry]) -> TankFacts<'a> {
+        let targets = targets_of(self.facility, tank);
+        let timeline =
+            Timeline::from_entries(entries.iter().copied().filter(|e| e.target().is_some_and(|t| targets.contains(t))));
+        let state = state_at(&timeline, self.request.end().to_utc(), self.interval);
+        let assessment =
+            state.as_ref().map(|s| timeline.assess(self.facility, tank, &s.reading, s.at, &self.request.config));
+        TankFacts { tank, state, assessment }
+    }
+
+    /// Records about any of `targets`.
+    fn about<'r>(&'r self, targets: &'r [Target]) -> impl Iterator<Item = &'r Record> + 'r {
+        self.records.iter().filter(move |r| r.body.target().is_some_and(|t| targets.contains(t)))
     }
 
     fn round(&self, tanks: &[TankFacts<'_>]) -> RoundSummary {
         let window = &self.request.round;
         let mut walkers: Vec<Walker> = Vec::new();
-        let targets = targets_of_tanks(&tanks.iter().map(|t| t.tank).collect::<Vec<_>>());
-        for record in self.records.iter().filter(|r| window.contains(&r.taken_at)) {
+        let targets = targets_of_tanks(self.facility, &tanks.iter().map(|t| t.tank).collect::<Vec<_>>());
+        for record in self.about(&targets).filter(|r| window.contains(&r.taken_at)) {
             let (reading, skip) = match &record.body {
-                RecordBody::Reading(r) if targets.contains(&r.target) => (1, 0),
-                RecordBody::Skip(s) if targets.contains(&s.target) => (0, 1),
+                RecordBody::Reading(_) => (1, 0),
+                RecordBody::Skip(_) => (0, 1),
                 _ => continue,
             };
             match walkers.iter_mut().find(|w| w.operator == record.operator) {
@@ -231,11 +296,13 @@ impl<'a> Gatherer<'a> {
     fn round_tank(&self, facts: &TankFacts<'_>) -> RoundTank {
         let window = &self.request.round;
         let tank = facts.tank;
-        let system = tank.system.as_ref().map(|s| s.as_str().to_string());
-        let read: Vec<_> = facts.history.readings.iter().filter(|r| window.contains(&r.record.taken_at)).collect();
+        let targets = targets_of(self.facility, tank);
+        let in_window: Vec<&Record> = self.about(&targets).filter(|r| window.contains(&r.taken_at)).collect();
+        let read: Vec<(&Record, &Reading)> =
+            in_window.iter().filter_map(|r| r.body.as_reading().map(|reading| (*r, reading))).collect();
         let mut row = RoundTank {
             tank: tank.id.to_string(),
-            system: system.clone(),
+            system: tank.system.as_ref().map(|s| s.as_str().to_string()),
             status: TankStatus::NotReached,
             at: None,
             by: None,
@@ -243,22 +310,18 @@ impl<'a> Gatherer<'a> {
             reason: None,
             band: None,
             latent_band: None,
-            fish_signs: read.iter().any(|r| !r.reading.observations.is_empty()),
+            fish_signs: read.iter().any(|(_, r)| !r.observations.is_empty()),
         };
-        if let Some(first) = read.first() {
+        if let Some((record, reading)) = read.first() {
             row.status = TankStatus::Done;
-            row.at = Some(first.record.taken_at);
-            row.by = Some(first.record.operator.clone());
-            row.via_system = matches!(first.reading.target, Target::System(_));
+            row.at = Some(record.taken_at);
+            row.by = Some(record.operator.clone());
+            row.via_system = matches!(reading.target, Target::System(_));
             row.band = facts.assessment.as_ref().and_then(|a| a.band);
             row.latent_band = facts.assessment.as_ref().and_then(|a| a.latent.map(|l| l.band));
             return row;
         }
-        let targets = crate::tank_history::targets_of(tank);
-        let skip = self.records.iter().filter(|r| window.contains(&r.taken_at)).rev().find_map(|r| match &r.body {
-            RecordBody::Skip(s) if targets.contains(&s.target) => Some((r, s)),
-            _ => None,
-        });
+        let skip = in_window.iter().rev().find_map(|r| r.body.as_skip().map(|s| (*r, s)));
         if let Some((record, skip)) = skip {
             row.status = TankStatus::Skipped;
             row.at = Some(record.taken_at);
@@ -269,29 +332,25 @@ impl<'a> Gatherer<'a> {
         row
     }
 
-    /// The waters that need attention: each system with selected tanks,
-    /// assessed as a whole, and each standalone (or singly selected) tank.
+    /// The waters that need attention: each system with selected tanks and
+    /// each standalone (or singly selected) tank. A system's reading is judged
+    /// for each of its tanks and the most severe judgement stands for the
+    /// system, as [`crate::timeline::Assessor`] does everywhere else.
     fn attention(&self, tanks: &[TankFacts<'_>]) -> Vec<Concern> {
         let mut concerns: Vec<Concern> = Vec::new();
         let mut systems_done: Vec<&str> = Vec::new();
         let single = matches!(self.request.selection, Selection::Tank(_));
         for facts in tanks {
-            let system = facts.tank.system.as_ref().and_then(|id| self.facility.system(id.as_str()));
-            let concern = match system {
+            let concern = match facts.tank.system.as_ref() {
                 Some(system) if !single => {
-                    if systems_done.contains(&system.id.as_str()) {
+                    if systems_done.contains(&system.as_str()) {
                         continue;
                     }
-                    systems_done.push(system.id.as_str());
-                    let on: Vec<&TankFacts> =
-                        tanks.iter().filter(|t| t.tank.system.as_ref() == Some(&system.id)).collect();
-                    let whole = system_as_tank(self.facility, system);
-                    let mut targets = vec![Target::System(system.id.to_string())];
-                    targets.extend(self.facility.tanks_on(system).iter().map(|t| Target::Tank(t.id.to_string())));
-                    let history = TankHistory::of_targets(&whole, self.records, &targets);
-                    self.concern(Target::System(system.id.to_string()), &history, &on)
+                    systems_done.push(system.as_str());
+                    let on: Vec<&TankFacts> = tanks.iter().filter(|t| t.tank.system.as_ref() == Some(system)).collect();
+                    self.concern(Target::System(system.as_str().to_string()), &on)
                 }
-                _ => self.concern(Target::Tank(facts.tank.id.to_string()), &facts.history, &[facts]),
+                _ => self.concern(Target::Tank(facts.tank.id.to_string()), &[facts]),
             };
             concerns.extend(concern);
         }
@@ -304,13 +363,18 @@ impl<'a> Gatherer<'a> {
         concerns
     }
 
-    /// The concern of one water, when it needs attention.
-    fn concern(&self, target: Target, history: &TankHistory<'_>, tanks: &[&TankFacts<'_>]) -> Option<Concern> {
-        let state = history.state_at(self.request.end().to_utc(), self.interval)?;
-        if state.last_seen < self.request.period.since {
+    /// The concern of one water (its tanks' facts), when it needs attention.
+    fn concern(&self, target: Target, tanks: &[&TankFacts<'_>]) -> Option<Concern> {
+        let severity = |f: &&&TankFacts<'_>| {
+            let a = f.assessment.as_ref();
+            (a.and_then(|a| a.band), a.and_then(|a| a.latent.map(|l| l.band)))
+        };
+        // The first of the most severe, in round order.
+        let worst = tanks.iter().filter(|f| f.assessment.is_some()).rev().max_by_key(severity)?;
+        let (state, a) = (worst.state.as_ref()?, worst.assessment.as_ref()?);
+        if state.last_seen < self.request.period.since.to_utc() {
             return None;
         }
-        let a = history.assess_state(self.facility, &state, &self.request.config);
         let mut reasons = Vec::new();
         match a.band {
             Some(Band::Critical) => reasons.push(Reason::Critical),
@@ -335,18 +399,47 @@ impl<'a> Gatherer<'a> {
             }
         }
         tank_bands.sort_by_key(|g| std::cmp::Reverse(g.band));
-        let since = history.events_between(state.at, self.request.end().to_utc());
+        let (taken_at, operator) = self
+            .by_id
+            .get(&state.id)
+            .map_or((state.at.with_timezone(&self.offset), String::new()), |r| (r.taken_at, r.operator.clone()));
+        let water_targets = match &target {
+            Target::System(id) => {
+                let mut targets = vec![target.clone()];
+                targets.extend(tanks.iter().map(|f| Target::Tank(f.tank.id.to_string())));
+                if let Some(system) = self.facility.system(id) {
+                    targets.extend(self.facility.tanks_on(system).iter().map(|t| Target::Tank(t.id.to_string())));
+                }
+                targets
+            }
+            Target::Tank(_) => targets_of(self.facility, worst.tank),
+        };
+        let until = self.request.end();
+        let events_since: Vec<EventView> = self
+            .about(&water_targets)
+            .filter(|r| r.taken_at.to_utc() > state.at && r.taken_at <= until)
+            .filter_map(|r| r.body.as_event().map(|e| self.event_view(r, e, None)))
+            .collect();
+        let mut species: Vec<String> = Vec::new();
+        for facts in tanks {
+            for p in self.facility.species_of(facts.tank) {
+                if !species.contains(&p.name) {
+                    species.push(p.name.clone());
+                }
+            }
+        }
         Some(Concern {
             target,
             tanks: tanks.iter().map(|t| t.tank.id.to_string()).collect(),
+            judged_for: worst.tank.id.to_string(),
             tank_bands,
-            species: self.facility.species_of(history.tank).iter().map(|p| p.name.clone()).collect(),
+            species,
             reasons,
             reading: self.reading_view(
                 &state.reading,
-                state.taken_at,
-                &state.operator,
-                self.facility.salinity_g_l(history.tank),
+                taken_at,
+                &operator,
+                self.facility.salinity_g_l(worst.tank),
                 &a.band_edges,
             ),
             band: a.band,
@@ -357,7 +450,7 @@ impl<'a> Gatherer<'a> {
             biofilter: a.biofilter.clone(),
             actions: a.actions.clone(),
             warnings: a.warnings.clone(),
-            events_since: since.iter().map(|e| self.event_view(e.record, e.event, None)).collect(),
+            events_since,
         })
     }
 
@@ -403,7 +496,7 @@ impl<'a> Gatherer<'a> {
     }
 
     fn sightings(&self, selected: &[&Tank]) -> Vec<Sighting> {
-        let targets = targets_of_tanks(selected);
+        let targets = targets_of_tanks(self.facility, selected);
         self.records
             .iter()
             .filter(|r| self.request.period.contains(&r.taken_at))
@@ -438,7 +531,7 @@ impl<'a> Gatherer<'a> {
                 .first()
                 .map(|tank| {
                     let target = Target::Tank(tank.id.to_string());
-                    self.water(target, self.species_names(&[tank]), &[tank], crate::tank_history::targets_of(tank))
+                    self.water(target, self.species_names(&[tank]), &[tank], targets_of(self.facility, tank))
                 })
                 .into_iter()
                 .collect();
@@ -610,30 +703,4 @@ fn sample_of(reading: &Reading, default_salinity: f64) -> Option<WaterSample> {
         salinity_ppt: m.salinity_ppt().unwrap_or(default_salinity),
         do_mg_l: m.dissolved_oxygen_mg_l,
     })
-}
-
-/// A system as one tank for the assessment: its whole volume, every species on
-/// it (so the most demanding sets each limit), all its stock, and the set-up
-/// date of its oldest tank.
-fn system_as_tank(facility: &Facility, system: &crate::model::facility::System) -> Tank {
-    let on = facility.tanks_on(system);
-    let mut species = Vec::new();
-    for tank in &on {
-        for key in &tank.species {
-            if !species.contains(key) {
-                species.push(key.clone());
-            }
-        }
-    }
-    Tank {
-        id: system.id.clone(),
-        volume_l: system.volume_l,
-        system: Some(system.id.clone()),
-        water_type: system.water_type,
-        salinity_g_l: system.salinity_g_l,
-        species,
-        stock_count: on.iter().fold(0u32, |sum, t| sum.saturating_add(t.stock_count)),
-        set_up: on.iter().map(|t| t.set_up).min().unwrap_or(chrono::NaiveDate::MIN),
-        notes: String::new(),
-    }
 }

@@ -239,6 +239,9 @@ fn concern(o: &mut String, report: &RoundReport, c: &Concern) {
             c.tank_bands.iter().map(|g| format!("{} {}", badge(g.band), escape(&g.tanks.join(", ")))).collect();
         fact(o, "Tanks", &groups.join("<br />"));
     }
+    if let Some(judged) = words::judged_for(c) {
+        fact(o, "Advice", &escape(&words::capitalise(&judged)));
+    }
     if !c.species.is_empty() {
         fact(o, "Species", &escape(&c.species.join(", ")));
     }

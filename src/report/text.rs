@@ -148,6 +148,9 @@ fn concern(o: &mut String, report: &RoundReport, number: usize, c: &Concern) {
     if matches!(c.target, crate::model::record::Target::System(_)) {
         let _ = writeln!(o, "{indent}Tanks by their own species' band: {}", words::tank_bands(c));
     }
+    if let Some(judged) = words::judged_for(c) {
+        let _ = writeln!(o, "{indent}{}", words::capitalise(&judged));
+    }
     if !c.species.is_empty() {
         let _ = writeln!(o, "{indent}Species: {}", c.species.join(", "));
     }

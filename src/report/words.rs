@@ -205,6 +205,16 @@ pub fn tank_bands(c: &super::Concern) -> String {
     c.tank_bands.iter().map(|g| format!("{}: {}", band(g.band), tanks(&g.tanks))).collect::<Vec<_>>().join("; ")
 }
 
+/// On a system: which tank's judgement stands for it, and why.
+pub fn judged_for(c: &super::Concern) -> Option<String> {
+    (matches!(c.target, Target::System(_)) && c.tanks.len() > 1).then(|| {
+        format!(
+            "judged for tank {}, the first of the most severe on the system: its species set the limits of the advice",
+            c.judged_for
+        )
+    })
+}
+
 /// Whether a latent figure says anything: the pH it assumes is above the reading's.
 pub fn latent_matters(c: &super::Concern) -> bool {
     match (&c.latent, c.reading.ph) {

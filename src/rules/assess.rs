@@ -15,7 +15,6 @@ use super::water_change::{self, Planned, SourceWater, TankWater};
 use crate::core::band::{Band, BandEdges};
 use crate::core::sample::{Derived, WaterSample, derive};
 use crate::core::units::{NACL_PER_CL, nitrite_n_to_ion};
-use crate::core::{AmmoniaInputs, toxic_ammonia};
 use crate::model::facility::{Facility, Tank, TemperatureUnit, VolumeUnit};
 use crate::model::record::{EventKind, Reading};
 use crate::model::species::{EffectiveProfile, WaterType};
@@ -227,9 +226,8 @@ fn nh3_text(nh3_n: f64) -> String {
 }
 
 /// NH3-N of a sample changed in temperature or salinity.
-fn nh3_n_at(sample: &WaterSample, temp_c: f64, salinity: f64) -> f64 {
-    toxic_ammonia(&AmmoniaInputs { tan_n_mg_l: sample.tan_n_mg_l, ph: sample.ph, temp_c, salinity_ppt: salinity })
-        .nh3_n_mg_l
+fn nh3_n_at(sample: &WaterSample, temp_c: f64, salinity_ppt: f64) -> f64 {
+    WaterSample { temp_c, salinity_ppt, ..*sample }.toxic().nh3_n_mg_l
 }
 
 fn percent_change(before: f64, after: f64) -> String {
@@ -329,7 +327,14 @@ pub fn assess(inputs: &Inputs<'_>) -> Assessment {
     let band = measured_band.map(|b| if raised_by.is_empty() { b } else { b.raised() });
 
     let (source, source_ph, chloramine) = source_water(inputs);
-    let latent = sample.map(|s| latent(&s, &edges, source_ph));
+    // Signs in the fish raise the latent band too: they are about the fish, not the pH.
+    let latent = sample.map(|s| {
+        let mut l = latent(&s, &edges, source_ph);
+        if !raised_by.is_empty() {
+            l.band = l.band.raised();
+        }
+        l
+    });
 
     // Trends over this reading and the earlier ones.
     let mut nh3_points = Vec::new();
@@ -337,7 +342,7 @@ pub fn assess(inputs: &Inputs<'_>) -> Assessment {
     let mut filter_readings = Vec::new();
     let mut push = |at: DateTime<Utc>, r: &Reading| {
         if let Some(s) = sample_of(r, configured_salinity) {
-            nh3_points.push((at, nh3_n_at(&s, s.temp_c, s.salinity_ppt)));
+            nh3_points.push((at, s.toxic().nh3_n_mg_l));
         }
         if let Some(t) = r.measurements.tan_n_mg_l() {
             tan_points.push((at, t));
@@ -907,8 +912,8 @@ impl Plan<'_> {
                 .filter(|p| p.at < self.inputs.at)
                 .filter_map(|p| sample_of(p.reading, salinity).map(|s| (p.at, s)))
                 .max_by_key(|p| p.0);
-            let previous_clear = previous
-                .is_some_and(|(_, s)| self.edges.classify(nh3_n_at(&s, s.temp_c, s.salinity_ppt)) == Band::Clear);
+            let previous_clear =
+                previous.is_some_and(|(_, s)| self.edges.classify(s.toxic().nh3_n_mg_l) == Band::Clear);
             if previous_clear && !reading.observations.any_sign() {
                 self.actions.push(Action::plain(
                     ActionKind::ResumeFeeding,

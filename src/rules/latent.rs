@@ -10,7 +10,6 @@ use serde::Serialize;
 
 use crate::core::band::{Band, BandEdges};
 use crate::core::sample::WaterSample;
-use crate::core::{AmmoniaInputs, toxic_ammonia};
 
 /// The pH rise assumed when the source water's pH is unknown.
 pub const DEFAULT_PH_STEP: f64 = 0.5;
@@ -38,7 +37,8 @@ pub struct Latent {
     pub nh3_n_mg_l: f64,
     /// NH3 at that pH, mg/L.
     pub nh3_mg_l: f64,
-    /// Band at that pH (before any escalation for signs in the fish).
+    /// Band at that pH (the assessment raises it by one, like the band, when
+    /// the fish show signs).
     pub band: Band,
 }
 
@@ -49,12 +49,7 @@ pub fn latent(sample: &WaterSample, edges: &BandEdges, source_ph: Option<(f64, L
         Some((ph, basis)) => (ph.max(sample.ph), basis),
         None => (sample.ph + DEFAULT_PH_STEP, LatentBasis::DefaultStep),
     };
-    let toxic = toxic_ammonia(&AmmoniaInputs {
-        tan_n_mg_l: sample.tan_n_mg_l,
-        ph: ph.min(14.0),
-        temp_c: sample.temp_c,
-        salinity_ppt: sample.salinity_ppt,
-    });
+    let toxic = WaterSample { ph: ph.min(14.0), ..*sample }.toxic();
     Latent { ph, basis, nh3_n_mg_l: toxic.nh3_n_mg_l, nh3_mg_l: toxic.nh3_mg_l, band: edges.classify(toxic.nh3_n_mg_l) }
 }
 

@@ -71,13 +71,7 @@ mod tests {
     }
 
     fn nh3_n(s: &WaterSample) -> f64 {
-        crate::core::toxic_ammonia(&crate::core::AmmoniaInputs {
-            tan_n_mg_l: s.tan_n_mg_l,
-            ph: s.ph,
-            temp_c: s.temp_c,
-            salinity_ppt: s.salinity_ppt,
-        })
-        .nh3_n_mg_l
+        s.toxic().nh3_n_mg_l
     }
 
     #[test]

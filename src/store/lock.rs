@@ -13,6 +13,9 @@ use fs2::FileExt;
 
 use super::StoreError;
 
+/// How long a refused lock is retried before another tankwalk is reported.
+const PATIENCE: std::time::Duration = std::time::Duration::from_millis(1500);
+
 /// The lock file's name in the data folder.
 pub(crate) const FILE_NAME: &str = "tankwalk.lock";
 
@@ -34,7 +37,16 @@ impl FolderLock {
             .truncate(false)
             .open(&path)
             .map_err(|e| StoreError::io("cannot open", &path, e))?;
-        if file.try_lock_exclusive().is_err() {
+        // A lock can be held for a moment by a process that is just starting
+        // another program (a forked child keeps the open file until it execs),
+        // so a refusal is retried briefly before it is reported.
+        let started = std::time::Instant::now();
+        let mut locked = file.try_lock_exclusive().is_ok();
+        while !locked && started.elapsed() < PATIENCE {
+            std::thread::sleep(std::time::Duration::from_millis(25));
+            locked = file.try_lock_exclusive().is_ok();
+        }
+        if !locked {
             let mut holder = String::new();
             let _ = file.read_to_string(&mut holder);
             let holder = holder.trim();

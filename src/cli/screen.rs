@@ -1,0 +1,209 @@
+//! The screen from the command line: `tankwalk` opens the board of the
+//! current room on the data folder's store; `tankwalk demo` opens a sample
+//! room with a generated history in a throw-away store.
+//!
+//! Everything that can be refused (no terminal, no room, a bad keymap, the
+//! data folder in use) is checked before the screen starts.
+
+use std::io::Write as _;
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+use anyhow::Context as _;
+use chrono::{DateTime, Duration, FixedOffset};
+use clap::{Args, ValueEnum};
+use tankwalk::model::facility::Facility;
+use tankwalk::model::record::Record;
+use tankwalk::store::{SledStore, Store, TimeRange};
+use tankwalk::tui::run::{self, Records};
+use tankwalk::tui::state::{App, SessionInfo};
+use tankwalk::tui::terminal;
+use ulid::Ulid;
+
+use super::keymap::{self, KeymapOption};
+use super::{GlobalArgs, bad_input};
+
+/// How far back the screen loads records: the longest chart period.
+pub const LOADED_DAYS: i64 = 90;
+
+/// The bundled sample rooms, embedded so the demo runs from anywhere.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Sample {
+    /// A wholesale holding room: four racks of twelve tanks and four quarantine tanks.
+    Harbourside,
+    /// A breeder's room of forty standalone tubs.
+    Cattail,
+    /// A small marine holding room on two systems.
+    Saltmarsh,
+}
+
+impl Sample {
+    fn file(self) -> (&'static str, &'static str) {
+        match self {
+            Sample::Harbourside => {
+                ("sample-rooms/harbourside-holding.toml", include_str!("../../sample-rooms/harbourside-holding.toml"))
+            }
+            Sample::Cattail => {
+                ("sample-rooms/cattail-bend-tubs.toml", include_str!("../../sample-rooms/cattail-bend-tubs.toml"))
+            }
+            Sample::Saltmarsh => {
+                ("sample-rooms/saltmarsh-marine.toml", include_str!("../../sample-rooms/saltmarsh-marine.toml"))
+            }
+        }
+    }
+}
+
+/// `tankwalk demo`
+#[derive(Debug, Args)]
+pub struct DemoArgs {
+    /// The sample room to open (`--room FILE` opens your own instead).
+    #[arg(long, value_enum, default_value_t = Sample::Harbourside)]
+    sample: Sample,
+    /// Days of generated history before today.
+    #[arg(long, default_value_t = 60, value_parser = clap::value_parser!(u32).range(1..=3650))]
+    days: u32,
+    /// Keep the demo's store in this folder (new or empty) instead of a throw-away one.
+    #[arg(long, value_name = "DIR")]
+    keep: Option<PathBuf>,
+}
+
+/// The time now, with the local offset.
+fn now() -> DateTime<FixedOffset> {
+    chrono::Local::now().fixed_offset()
+}
+
+/// Who is walking: TANKWALK_OPERATOR, else the login name.
+fn operator() -> String {
+    ["TANKWALK_OPERATOR", "USER", "LOGNAME", "USERNAME"]
+        .iter()
+        .find_map(|v| std::env::var(v).ok().map(|n| n.trim().to_string()).filter(|n| !n.is_empty()))
+        .unwrap_or_else(|| "unnamed".to_string())
+}
+
+/// Saves go to the store (durable when `append` returns); exports go to the
+/// data folder's `exports/`.
+struct StoreRecords {
+    store: SledStore,
+    exports: PathBuf,
+    saved: usize,
+}
+
+impl Records for StoreRecords {
+    fn save(&mut self, records: &[Record]) -> Result<(), String> {
+        self.store.append(records).map(|_| self.saved += records.len()).map_err(|e| e.to_string())
+    }
+
+    fn export(&mut self) -> Result<String, String> {
+        export_json_lines(&self.store, &self.exports).map_err(|e| format!("{e:#}"))
+    }
+}
+
+/// Writes every record, one JSON object a line (the journal's record form),
+/// to a new file in `dir`: written to a temporary file, synced, then renamed.
+///
+/// SEAM: the flat-file export (JSON Lines with a header, CSV, manifest) is
+/// its own piece of work; when it lands this calls it instead.
+fn export_json_lines(store: &SledStore, dir: &Path) -> anyhow::Result<String> {
+    std::fs::create_dir_all(dir).with_context(|| format!("creating {}", dir.display()))?;
+    let name = format!("records-{}.jsonl", now().format("%Y%m%d-%H%M%S"));
+    let path = dir.join(&name);
+    let partial = dir.join(format!(".{name}.partial"));
+    let mut file = std::io::BufWriter::new(
+        std::fs::File::create(&partial).with_context(|| format!("creating {}", partial.display()))?,
+    );
+    let mut count = 0usize;
+    for record in store.all()? {
+        serde_json::to_writer(&mut file, &record?)?;
+        file.write_all(b"\n")?;
+        count += 1;
+    }
+    let file = file.into_inner().map_err(|e| e.into_error())?;
+    file.sync_all()?;
+    std::fs::rename(&partial, &path)?;
+    if let Ok(folder) = std::fs::File::open(dir) {
+        let _ = folder.sync_all();
+    }
+    Ok(format!("{} ({count} records)", path.display()))
+}
+
+/// The records the screen shows: those of the last [`LOADED_DAYS`] days (a
+/// correction is filed at the time of the record it corrects, so it comes
+/// with it), read through the store's time index.
+fn load_records(store: &SledStore, now: DateTime<FixedOffset>) -> anyhow::Result<Vec<Record>> {
+    let since = (now - Duration::days(LOADED_DAYS)).with_timezone(&chrono::Utc);
+    Ok(store.history(&[], &TimeRange::new(Some(since), None))?)
+}
+
+fn run_screen(
+    facility: Facility,
+    store: SledStore,
+    data_dir: &Path,
+    keymap: &tankwalk::tui::Keymap,
+) -> anyhow::Result<usize> {
+    let started = now();
+    let records = load_records(&store, started)?;
+    let session = SessionInfo { operator: operator(), device: store.device(), id_seed: Ulid::generate().random() };
+    let mut app = App::new(facility, records, session, started);
+    app.colour = terminal::colour_wanted();
+    let mut records = StoreRecords { store, exports: data_dir.join("exports"), saved: 0 };
+    run::run(&mut app, keymap, &mut records, &now)?;
+    Ok(records.saved)
+}
+
+/// `tankwalk` with no subcommand: the board of the current room.
+pub fn open(global: &GlobalArgs, keymap_option: &KeymapOption) -> anyhow::Result<ExitCode> {
+    terminal::check_terminal()?;
+    let (_, facility) = super::room::resolve_room(global)?;
+    let keymap = keymap::load(global, keymap_option)?.keymap;
+    let data_dir = global.data_dir()?;
+    let store = super::open_store(global)?;
+    let saved = run_screen(facility, store, &data_dir, &keymap)?;
+    println!(
+        "tankwalk: {saved} record{} saved this session, in {}",
+        if saved == 1 { "" } else { "s" },
+        data_dir.display()
+    );
+    Ok(ExitCode::SUCCESS)
+}
+
+/// `tankwalk demo`: a sample room with a generated history, in a throw-away store.
+pub fn demo(global: &GlobalArgs, keymap_option: &KeymapOption, args: &DemoArgs) -> anyhow::Result<ExitCode> {
+    terminal::check_terminal()?;
+    let facility = match &global.room {
+        Some(path) => Facility::load(path).map_err(|e| bad_input!("{e}"))?,
+        None => {
+            let (name, text) = args.sample.file();
+            Facility::parse(text, Path::new(name))
+                .map_err(|e| anyhow::anyhow!("the bundled {name} does not load: {e}"))?
+        }
+    };
+    let keymap = keymap::load(global, keymap_option)?.keymap;
+    let (dir, throw_away) = match &args.keep {
+        Some(dir) => {
+            if dir.exists() && std::fs::read_dir(dir).map(|mut d| d.next().is_some()).unwrap_or(true) {
+                return Err(bad_input!("--keep {}: give a new or empty folder", dir.display()));
+            }
+            (dir.clone(), false)
+        }
+        None => {
+            let dir = std::env::temp_dir().join(format!("tankwalk-demo-{}-{}", std::process::id(), Ulid::generate()));
+            (dir, true)
+        }
+    };
+    std::fs::create_dir_all(&dir).with_context(|| format!("creating {}", dir.display()))?;
+    let result = (|| {
+        let mut store = SledStore::open(&dir)?;
+        let history = tankwalk::demo::history(&facility, store.device(), now(), args.days, 2026);
+        for batch in history.chunks(5_000) {
+            store.append(batch)?;
+        }
+        run_screen(facility, store, &dir, &keymap)
+    })();
+    if throw_away {
+        let _ = std::fs::remove_dir_all(&dir);
+        println!("tankwalk: the demo's throw-away store is gone; `tankwalk demo --keep DIR` keeps one");
+    } else {
+        println!("tankwalk: the demo's store is in {} (open it with --data-dir)", dir.display());
+    }
+    result.map(|_| ExitCode::SUCCESS)
+}

@@ -1,0 +1,131 @@
+//! End to end in a real terminal: the real binary in tmux on a sample room
+//! with a temporary data folder walks six tubs (five read, one skipped) and
+//! quits; `tankwalk log --json` must then hold exactly those five readings
+//! and the skip with its reason.
+//!
+//! tmux must be installed (`.ci/run` installs it).
+
+use std::path::Path;
+use std::process::Command;
+use std::time::{Duration, Instant};
+
+const BIN: &str = env!("CARGO_BIN_EXE_tankwalk");
+
+struct Tmux {
+    socket: String,
+}
+
+impl Tmux {
+    fn run(&self, args: &[&str]) -> String {
+        let out = Command::new("tmux")
+            .arg("-L")
+            .arg(&self.socket)
+            .args(args)
+            .output()
+            .expect("tmux runs (install it: apt-get install tmux)");
+        assert!(out.status.success(), "tmux {args:?}: {}", String::from_utf8_lossy(&out.stderr));
+        String::from_utf8_lossy(&out.stdout).into_owned()
+    }
+
+    fn screen(&self) -> String {
+        self.run(&["capture-pane", "-p", "-t", "e2e"])
+    }
+
+    /// Waits until the screen shows `text`; on timeout fails with the screen.
+    fn wait_for(&self, text: &str) {
+        let deadline = Instant::now() + Duration::from_secs(20);
+        loop {
+            let screen = self.screen();
+            if screen.contains(text) {
+                return;
+            }
+            assert!(Instant::now() < deadline, "waited for {text:?}; the screen shows:\n{screen}");
+            std::thread::sleep(Duration::from_millis(50));
+        }
+    }
+
+    fn keys(&self, keys: &[&str]) {
+        for key in keys {
+            if key.chars().all(|c| c.is_ascii_digit() || c == '.') {
+                self.run(&["send-keys", "-t", "e2e", "-l", key]);
+            } else {
+                self.run(&["send-keys", "-t", "e2e", key]);
+            }
+        }
+    }
+}
+
+impl Drop for Tmux {
+    fn drop(&mut self) {
+        let _ = Command::new("tmux").args(["-L", &self.socket, "kill-server"]).output();
+    }
+}
+
+fn shell_quote(s: &str) -> String {
+    format!("'{}'", s.replace('\'', r"'\''"))
+}
+
+#[test]
+fn walk_five_tubs_skip_one_quit_and_the_log_has_exactly_those_readings() {
+    let data = tempfile::tempdir().unwrap();
+    let room = Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-rooms/cattail-bend-tubs.toml");
+    let tmux = Tmux { socket: format!("tankwalk-e2e-{}", std::process::id()) };
+    let command = format!(
+        "env -u TANKWALK_KEYMAP -u TANKWALK_ROOM NO_COLOR=1 TANKWALK_OPERATOR=e2e-tester {} --room {} --data-dir {}; \
+         echo \"tankwalk exited $?\"; sleep 60",
+        shell_quote(BIN),
+        shell_quote(&room.to_string_lossy()),
+        shell_quote(&data.path().to_string_lossy())
+    );
+    tmux.run(&["-f", "/dev/null", "new-session", "-d", "-s", "e2e", "-x", "100", "-y", "30", &command]);
+    tmux.run(&["set-option", "-g", "escape-time", "0"]);
+    tmux.wait_for("Room board");
+    tmux.keys(&["w"]);
+    tmux.wait_for("T-01");
+    // Tubs 1, 2, 4, 5 and 6 are read (°F, pH, total ammonia as NH4+, nitrite); tub 3 is skipped.
+    let readings = [("T-01", "78", "7.2", "0.3"), ("T-02", "77", "7.4", "0.5"), ("T-04", "79", "7.0", "0.25")];
+    let more = [("T-05", "78.5", "7.6", "1.2"), ("T-06", "76", "7.3", "0.1")];
+    for (tank, temp, ph, tan) in readings.iter().chain(&more) {
+        if *tank == "T-04" {
+            tmux.wait_for("T-03");
+            tmux.keys(&["x"]);
+            tmux.wait_for("Why is T-03 skipped?");
+            tmux.keys(&["Enter"]);
+            tmux.wait_for("Skipped T-03");
+        }
+        tmux.wait_for(&format!(" {tank} "));
+        tmux.keys(&[temp, "Enter", ph, "Enter", tan, "Enter", "0.05", "s"]);
+        tmux.wait_for(&format!("Saved: {tank} is on disk"));
+    }
+    tmux.keys(&["q"]);
+    tmux.wait_for("tankwalk exited 0");
+
+    let out = Command::new(BIN)
+        .args(["log", "--json", "--data-dir"])
+        .arg(data.path())
+        .env_remove("TANKWALK_ROOM")
+        .output()
+        .unwrap();
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let log: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let all = log.as_array().unwrap();
+    // The skip is stored too, with its reason.
+    let skips: Vec<_> = all.iter().filter(|r| r["kind"] == "skip").collect();
+    assert_eq!(skips.len(), 1, "{log:#}");
+    assert_eq!(skips[0]["tank"], "T-03");
+    assert_eq!(skips[0]["note"], "tank empty or being set up", "{:#}", skips[0]);
+    let rows: Vec<_> = all.iter().filter(|r| r["kind"] != "skip").collect();
+    assert_eq!(rows.len(), 5, "{log:#}");
+    let mut tanks: Vec<&str> = rows.iter().map(|r| r["tank"].as_str().unwrap()).collect();
+    tanks.sort_unstable();
+    assert_eq!(tanks, ["T-01", "T-02", "T-04", "T-05", "T-06"]);
+    for (tank, temp_f, ph, _) in readings.iter().chain(&more) {
+        let row = rows.iter().find(|r| r["tank"] == *tank).unwrap();
+        assert_eq!(row["kind"], "reading");
+        assert_eq!(row["ph"].as_f64().unwrap(), ph.parse::<f64>().unwrap(), "{tank}");
+        let celsius = (temp_f.parse::<f64>().unwrap() - 32.0) / 1.8;
+        assert!((row["temp_c"].as_f64().unwrap() - celsius).abs() < 1e-9, "{tank}");
+        assert!(row["tan_n_mg_l"].as_f64().is_some(), "{tank}");
+        assert!(row["supersedes"].is_null(), "{tank}");
+    }
+}
