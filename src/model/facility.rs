@@ -9,7 +9,7 @@
 
 use std::fmt;
 
-use chrono::NaiveDate;
+use chrono::{DateTime, FixedOffset, NaiveDate, Timelike};
 use serde::{Deserialize, Serialize};
 
 use super::id::Id;
@@ -50,6 +50,28 @@ pub struct Room {
     pub round_interval_hours: u32,
     /// Free notes (who runs the room, when the round is walked).
     pub notes: String,
+}
+
+impl Room {
+    /// The start of the round that `now` falls in: see [`round_start`].
+    pub fn round_start(&self, now: DateTime<FixedOffset>) -> DateTime<FixedOffset> {
+        round_start(now, self.round_interval_hours)
+    }
+}
+
+/// The start of the round that `now` falls in: local midnight (in `now`'s
+/// offset) for rooms read once a day or less often, else the start of the
+/// current block of `interval_hours` of the day. A round is what a person
+/// means by "this morning's round": yesterday's late reading does not count
+/// for it, and the screen and the report use this one rule.
+pub fn round_start(now: DateTime<FixedOffset>, interval_hours: u32) -> DateTime<FixedOffset> {
+    let midnight = now.with_hour(0).and_then(|t| t.with_minute(0)).and_then(|t| t.with_second(0));
+    let midnight = midnight.and_then(|t| t.with_nanosecond(0)).unwrap_or(now);
+    if interval_hours == 0 || interval_hours >= 24 {
+        return midnight;
+    }
+    let blocks = now.hour() / interval_hours;
+    midnight + chrono::Duration::hours(i64::from(blocks * interval_hours))
 }
 
 /// Hours between readings when the file does not say.
@@ -315,6 +337,20 @@ impl fmt::Display for RoundOrder {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    fn at(day: u32, hour: u32, minute: u32) -> DateTime<FixedOffset> {
+        use chrono::TimeZone;
+        FixedOffset::east_opt(-5 * 3600).unwrap().with_ymd_and_hms(2026, 12, day, hour, minute, 0).unwrap()
+    }
+
+    #[test]
+    fn daily_rounds_start_at_local_midnight_and_shorter_ones_on_the_interval() {
+        assert_eq!(round_start(at(2, 7, 40), 24), at(2, 0, 0));
+        assert_eq!(round_start(at(2, 7, 40), 48), at(2, 0, 0));
+        assert_eq!(round_start(at(2, 13, 5), 12), at(2, 12, 0));
+        assert_eq!(round_start(at(2, 5, 5), 8), at(2, 0, 0));
+    }
+
     use crate::core::band::BandEdges;
     use crate::model::species::Bounds;
 

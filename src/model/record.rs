@@ -327,14 +327,7 @@ impl Reading {
     /// The sample the chemistry needs, when temperature, pH and total ammonia
     /// were all measured (fresh water when no salinity was measured).
     pub fn water_sample(&self) -> Option<WaterSample> {
-        let m = &self.measurements;
-        Some(WaterSample {
-            temp_c: m.temp_c()?,
-            ph: m.ph?,
-            tan_n_mg_l: m.tan_n_mg_l()?,
-            salinity_ppt: m.salinity_ppt().unwrap_or(0.0),
-            do_mg_l: m.dissolved_oxygen_mg_l,
-        })
+        self.measurements.water_sample(0.0)
     }
 
     /// True when nothing was measured, no sign or death was seen and no note written.
@@ -535,6 +528,19 @@ impl Measurements {
     /// True when nothing was measured.
     pub fn is_empty(&self) -> bool {
         *self == Measurements::default()
+    }
+
+    /// The sample the chemistry needs, when temperature, pH and total ammonia
+    /// were all measured; without a measured salinity, `default_salinity`
+    /// (the g/L the tank or system is run at).
+    pub fn water_sample(&self, default_salinity: f64) -> Option<WaterSample> {
+        Some(WaterSample {
+            temp_c: self.temp_c()?,
+            ph: self.ph?,
+            tan_n_mg_l: self.tan_n_mg_l()?,
+            salinity_ppt: self.salinity_ppt().unwrap_or(default_salinity),
+            do_mg_l: self.dissolved_oxygen_mg_l,
+        })
     }
 
     /// Temperature, °C.

@@ -280,14 +280,7 @@ fn had_event(inputs: &Inputs<'_>, within: Duration, test: impl Fn(&EventKind) ->
 
 /// The sample of a reading, with the tank's configured salinity when none was measured.
 fn sample_of(reading: &Reading, default_salinity: f64) -> Option<WaterSample> {
-    let m = &reading.measurements;
-    Some(WaterSample {
-        temp_c: m.temp_c()?,
-        ph: m.ph?,
-        tan_n_mg_l: m.tan_n_mg_l()?,
-        salinity_ppt: m.salinity_ppt().unwrap_or(default_salinity),
-        do_mg_l: m.dissolved_oxygen_mg_l,
-    })
+    reading.measurements.water_sample(default_salinity)
 }
 
 /// Assesses one reading.

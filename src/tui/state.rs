@@ -166,7 +166,7 @@ impl App {
     ) -> App {
         let round_order =
             facility.round().iter().filter_map(|t| facility.tanks.iter().position(|u| u.id == t.id)).collect();
-        let round_start = round::round_start(now, facility.room.round_interval_hours);
+        let round_start = facility.room.round_start(now);
         let mut app = App {
             history: History::from_records(records),
             round_order,
@@ -377,7 +377,7 @@ pub const INTERRUPT: Key = Key::ctrl('c');
 /// Applies one input at time `now`; returns what `run.rs` must do.
 pub fn update(app: &mut App, keymap: &Keymap, input: Input, now: DateTime<FixedOffset>) -> Vec<Effect> {
     app.now = now;
-    let start = round::round_start(now, app.facility.room.round_interval_hours);
+    let start = app.facility.room.round_start(now);
     if start != app.round_start {
         // A new round began while the screen was open.
         app.round_start = start;

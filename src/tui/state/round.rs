@@ -1,12 +1,12 @@
 //! This morning's round: when it started, which tanks are done, due or
 //! overdue, and each tank's latest water and band.
 
-use chrono::{DateTime, Duration, FixedOffset, Timelike};
+use chrono::{DateTime, Duration, FixedOffset};
 
 use crate::core::band::Band;
 use crate::core::sample::{WaterSample, derive};
 use crate::model::facility::{Facility, Tank};
-use crate::model::record::{Measurements, Observations, Reading, Target};
+use crate::model::record::{Observations, Reading, Target};
 
 use super::history::{Entry, History};
 
@@ -46,18 +46,6 @@ impl Due {
     }
 }
 
-/// The start of the round that `now` falls in: local midnight for rooms read
-/// once a day or less often, else the start of the current interval of the day.
-pub fn round_start(now: DateTime<FixedOffset>, interval_hours: u32) -> DateTime<FixedOffset> {
-    let midnight = now.with_hour(0).and_then(|t| t.with_minute(0)).and_then(|t| t.with_second(0));
-    let midnight = midnight.and_then(|t| t.with_nanosecond(0)).unwrap_or(now);
-    if interval_hours == 0 || interval_hours >= 24 {
-        return midnight;
-    }
-    let blocks = now.hour() / interval_hours;
-    midnight + Duration::hours(i64::from(blocks * interval_hours))
-}
-
 /// What the board and the summary show for one tank.
 #[derive(Debug, Clone, PartialEq)]
 pub struct TankStatus {
@@ -71,17 +59,6 @@ pub struct TankStatus {
     pub due: Due,
     /// Signs or deaths recorded for it this round.
     pub signs: bool,
-}
-
-/// The salinity a reading implies: measured, else what the tank is run at.
-pub fn sample_of(measurements: &Measurements, default_salinity: f64) -> Option<WaterSample> {
-    Some(WaterSample {
-        temp_c: measurements.temp_c()?,
-        ph: measurements.ph?,
-        tan_n_mg_l: measurements.tan_n_mg_l()?,
-        salinity_ppt: measurements.salinity_ppt().unwrap_or(default_salinity),
-        do_mg_l: measurements.dissolved_oxygen_mg_l,
-    })
 }
 
 /// The target of a tank's own readings.
@@ -102,7 +79,7 @@ pub fn latest_water<'a>(facility: &Facility, history: &'a History, tank: &Tank) 
         .readings_of_tank(tank)
         .into_iter()
         .rev()
-        .find_map(|e| e.reading().and_then(|r| sample_of(&r.measurements, salinity)).map(|s| (e, s)))
+        .find_map(|e| e.reading().and_then(|r| r.measurements.water_sample(salinity)).map(|s| (e, s)))
 }
 
 /// The tank's own reading this round, the newest when there are several.
@@ -191,14 +168,6 @@ mod tests {
 
     fn at(day: u32, hour: u32, minute: u32) -> DateTime<FixedOffset> {
         FixedOffset::east_opt(-5 * 3600).unwrap().with_ymd_and_hms(2026, 12, day, hour, minute, 0).unwrap()
-    }
-
-    #[test]
-    fn daily_rounds_start_at_local_midnight_and_shorter_ones_on_the_interval() {
-        assert_eq!(round_start(at(2, 7, 40), 24), at(2, 0, 0));
-        assert_eq!(round_start(at(2, 7, 40), 48), at(2, 0, 0));
-        assert_eq!(round_start(at(2, 13, 5), 12), at(2, 12, 0));
-        assert_eq!(round_start(at(2, 5, 5), 8), at(2, 0, 0));
     }
 
     #[test]

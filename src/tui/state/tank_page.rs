@@ -198,7 +198,7 @@ pub fn history_rows(app: &App, tank_index: usize) -> Vec<HistoryRow<'_>> {
         .into_iter()
         .rev()
         .map(|entry| {
-            let nh3 = entry.reading().and_then(|r| round::sample_of(&r.measurements, salinity)).map(|s| {
+            let nh3 = entry.reading().and_then(|r| r.measurements.water_sample(salinity)).map(|s| {
                 let d = derive(&s, &edges, app.facility.room.elevation_m);
                 (d.toxic.nh3_n_mg_l, d.band)
             });
@@ -228,16 +228,7 @@ pub fn series(app: &App, tank_index: usize, chart: ChartKind, days: u32) -> Vec<
                     let c = m.temp_c()?;
                     if fahrenheit { crate::core::units::celsius_to_fahrenheit(c) } else { c }
                 }
-                ChartKind::Nh3 => {
-                    let s = round::sample_of(m, salinity)?;
-                    crate::core::toxic_ammonia(&crate::core::AmmoniaInputs {
-                        tan_n_mg_l: s.tan_n_mg_l,
-                        ph: s.ph,
-                        temp_c: s.temp_c,
-                        salinity_ppt: s.salinity_ppt,
-                    })
-                    .nh3_n_mg_l
-                }
+                ChartKind::Nh3 => m.water_sample(salinity)?.toxic().nh3_n_mg_l,
             };
             Some((x, y))
         })

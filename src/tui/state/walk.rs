@@ -201,7 +201,7 @@ impl TankEntry {
                 put(&mut m, field.kind, v);
             }
         }
-        round::sample_of(&m, default_salinity)
+        m.water_sample(default_salinity)
     }
 }
 
@@ -270,8 +270,7 @@ pub fn load_entry(app: &App, tank_index: usize) -> TankEntry {
             .iter()
             .map(|&k| earlier.iter().rev().find_map(|e| e.reading().and_then(|r| value_for(k, &r.measurements))))
             .collect();
-        let nh3 =
-            earlier.iter().rev().find_map(|e| e.reading().and_then(|r| round::sample_of(&r.measurements, salinity)));
+        let nh3 = earlier.iter().rev().find_map(|e| e.reading().and_then(|r| r.measurements.water_sample(salinity)));
         let nh3 = nh3.map(|s| {
             let d = crate::core::sample::derive(&s, &edges, app.facility.room.elevation_m);
             (d.toxic.nh3_n_mg_l, d.band)
@@ -281,7 +280,7 @@ pub fn load_entry(app: &App, tank_index: usize) -> TankEntry {
     let nh3_history: Vec<_> = earlier
         .iter()
         .filter_map(|e| {
-            let s = e.reading().and_then(|r| round::sample_of(&r.measurements, salinity))?;
+            let s = e.reading().and_then(|r| r.measurements.water_sample(salinity))?;
             let nh3 = crate::core::toxic_ammonia(&crate::core::AmmoniaInputs {
                 tan_n_mg_l: s.tan_n_mg_l,
                 ph: s.ph,
