@@ -91,12 +91,12 @@ pub struct Request {
 }
 
 impl Request {
-    /// The round of the room's interval ending at `at`, with the
-    /// [`DEFAULT_PERIOD_DAYS`] before `at` as the period.
+    /// The round that `at` falls in (from [`Room::round_start`](crate::model::Room::round_start):
+    /// local midnight, or the block of the day for rooms read more than once a
+    /// day) up to `at`, with the [`DEFAULT_PERIOD_DAYS`] before `at` as the period.
     pub fn round_ending(facility: &Facility, at: DateTime<FixedOffset>, selection: Selection) -> Request {
-        let round = Window::ending(at, i64::from(facility.room.round_interval_hours));
         Request {
-            round,
+            round: Window { since: facility.room.round_start(at), until: at },
             period: Window::ending(at, DEFAULT_PERIOD_DAYS * 24),
             selection,
             generated_at: at,
@@ -104,9 +104,14 @@ impl Request {
         }
     }
 
-    /// A whole day's rounds (`start` and `end` are the day's first and last
-    /// instants), with the [`DEFAULT_PERIOD_DAYS`] up to its end as the period.
-    pub fn day(start: DateTime<FixedOffset>, end: DateTime<FixedOffset>, selection: Selection) -> Request {
+    /// The round that starts at the local midnight of `day` (any instant of
+    /// that day, in the offset it is given in): the whole day for a room read
+    /// once a day, else the day's first block of the room's interval; with the
+    /// [`DEFAULT_PERIOD_DAYS`] up to its end as the period.
+    pub fn day(facility: &Facility, day: DateTime<FixedOffset>, selection: Selection) -> Request {
+        let start = crate::model::facility::round_start(day, 24);
+        let hours = i64::from(facility.room.round_interval_hours.clamp(1, 24));
+        let end = start + Duration::hours(hours) - Duration::milliseconds(1);
         Request {
             round: Window { since: start, until: end },
             period: Window::ending(end, DEFAULT_PERIOD_DAYS * 24),
@@ -116,18 +121,16 @@ impl Request {
         }
     }
 
-    /// A period, from `since` to `until`; the round is the room's interval at
-    /// its end (not before `since`).
+    /// A period, from `since` to `until`; the round is the one `until` falls
+    /// in (not before `since`).
     pub fn period(
         facility: &Facility,
         since: DateTime<FixedOffset>,
         until: DateTime<FixedOffset>,
         selection: Selection,
     ) -> Request {
-        let mut round = Window::ending(until, i64::from(facility.room.round_interval_hours));
-        round.since = round.since.max(since);
         Request {
-            round,
+            round: Window { since: facility.room.round_start(until).max(since), until },
             period: Window { since, until },
             selection,
             generated_at: until,

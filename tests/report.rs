@@ -208,7 +208,11 @@ fn a_past_day_one_system_and_one_tank() {
     let facility = room();
     let records = entries(history(&facility));
     let day = |d: u32, h: u32, m: u32, s: u32| offset().with_ymd_and_hms(2026, 11, d, h, m, s).unwrap();
-    let request = Request::day(day(30, 0, 0, 0), day(30, 23, 59, 59), Selection::Room);
+    let request = Request::day(&facility, day(30, 15, 0, 0), Selection::Room);
+    assert_eq!(
+        (request.round.since, request.round.until),
+        (day(30, 0, 0, 0), day(30, 23, 59, 59) + Duration::milliseconds(999))
+    );
     let past = json(&report::gather(&facility, &records, &request).unwrap());
     assert_eq!(past["counts"]["done"], 52, "the generated rounds are complete");
     assert_eq!(past["counts"]["skipped"], 0);

@@ -17,9 +17,9 @@ use super::{GlobalArgs, bad_input};
 
 #[derive(Debug, Args)]
 pub struct ReportArgs {
-    /// The round of this day (2026-12-01, today, yesterday): that day's readings and skips, with the
-    /// 14 days up to its end charted. Without --date or --since: the round of the room's interval
-    /// (24 h unless the room says otherwise) up to now.
+    /// The round of this day (2026-12-01, today, yesterday): the round that starts at its local
+    /// midnight, with the 14 days up to its end charted. Without --date or --since: the round under
+    /// way (since local midnight, or since the start of the room's block of the day) up to now.
     #[arg(long, value_name = "DATE", conflicts_with_all = ["since", "until"])]
     date: Option<String>,
     /// Report on a period from this time (2026-11-01, 2026-11-01T07:00, RFC 3339, or an age: 30d);
@@ -75,7 +75,7 @@ pub fn run(global: &GlobalArgs, args: &ReportArgs) -> Result<ExitCode> {
         if !is_day(date) {
             return Err(bad_input!("--date: '{date}' is not a day (use 2026-12-01, today or yesterday)"));
         }
-        Request::day(when("--date", date, Bound::Start)?, when("--date", date, Bound::End)?, selection)
+        Request::day(&facility, when("--date", date, Bound::Start)?, selection)
     } else if args.since.is_some() || args.until.is_some() {
         let until = match &args.until {
             Some(text) => when("--until", text, Bound::End)?,

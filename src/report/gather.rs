@@ -11,7 +11,7 @@ use super::{
     RoundTank, Selection, Series, SeriesPoint, Sighting, TankBands, TankStatus, Units, Walker, Water, words,
 };
 use crate::core::band::{Band, BandEdges};
-use crate::core::sample::{WaterSample, derive};
+use crate::core::sample::derive;
 use crate::model::facility::{Facility, Tank, TemperatureUnit};
 use crate::model::record::{Event, Reading, Record, RecordBody, Target};
 use crate::model::species::EffectiveProfile;
@@ -463,7 +463,10 @@ impl<'a> Gatherer<'a> {
         edges: &BandEdges,
     ) -> ReadingView {
         let m = &reading.measurements;
-        let derived = sample_of(reading, default_salinity).map(|s| derive(&s, edges, self.facility.room.elevation_m));
+        let derived = reading
+            .measurements
+            .water_sample(default_salinity)
+            .map(|s| derive(&s, edges, self.facility.room.elevation_m));
         ReadingView {
             at: at.with_timezone(&self.offset),
             by: by.to_string(),
@@ -605,7 +608,8 @@ impl<'a> Gatherer<'a> {
         for (record, reading) in &in_period {
             let m = &reading.measurements;
             let at = record.taken_at;
-            let nh3 = sample_of(reading, salinity).map(|s| derive(&s, &edges, self.facility.room.elevation_m));
+            let nh3 =
+                reading.measurements.water_sample(salinity).map(|s| derive(&s, &edges, self.facility.room.elevation_m));
             let values = [
                 nh3.map(|d| (d.toxic.nh3_n_mg_l, Some(d.band))),
                 m.tan_n_mg_l().map(|v| (v, None)),
@@ -632,14 +636,16 @@ impl<'a> Gatherer<'a> {
         let latest = readings
             .iter()
             .rev()
-            .find(|(_, r)| sample_of(r, salinity).is_some())
+            .find(|(_, r)| r.measurements.water_sample(salinity).is_some())
             .or_else(|| readings.iter().rev().find(|(_, r)| !r.measurements.is_empty()));
         let latest_view =
             latest.map(|(r, reading)| self.reading_view(reading, r.taken_at, &r.operator, salinity, &edges));
         let nh3_points: Vec<(DateTime<Utc>, f64)> = readings
             .iter()
             .filter_map(|(r, reading)| {
-                sample_of(reading, salinity)
+                reading
+                    .measurements
+                    .water_sample(salinity)
                     .map(|s| (r.taken_at.to_utc(), derive(&s, &edges, self.facility.room.elevation_m).toxic.nh3_n_mg_l))
             })
             .collect();
@@ -690,17 +696,4 @@ fn unit_of(measure: Measure, unit: TemperatureUnit) -> &'static str {
         Measure::Temperature => unit.symbol(),
         Measure::Nitrite => "mg/L NO2-N",
     }
-}
-
-/// The sample of a reading, with the water's configured salinity when none was measured
-/// (as the assessment does).
-fn sample_of(reading: &Reading, default_salinity: f64) -> Option<WaterSample> {
-    let m = &reading.measurements;
-    Some(WaterSample {
-        temp_c: m.temp_c()?,
-        ph: m.ph?,
-        tan_n_mg_l: m.tan_n_mg_l()?,
-        salinity_ppt: m.salinity_ppt().unwrap_or(default_salinity),
-        do_mg_l: m.dissolved_oxygen_mg_l,
-    })
 }

@@ -279,11 +279,7 @@ pub fn headline(report: &RoundReport) -> String {
     let round = &report.round;
     let mut parts = Vec::new();
     if c.done == 0 && c.skipped == 0 {
-        parts.push(format!(
-            "No tank was checked between {} (the round of every {} h).",
-            span(&round.window.since, &round.window.until),
-            round.interval_hours
-        ));
+        parts.push(format!("No tank was checked in this round ({}).", span(&round.window.since, &round.window.until)));
     } else {
         let who: Vec<String> = round.walked_by.iter().map(|w| w.operator.clone()).collect();
         let when = match (&round.started, &round.finished) {
