@@ -50,6 +50,24 @@ fn is_day(text: &str) -> bool {
         || ["today", "yesterday"].contains(&t.to_ascii_lowercase().as_str())
 }
 
+/// Writes the HTML report of the round under way into `dir` (created when
+/// missing) as `round-YYYYMMDD-HHMM.html`; returns the file. The round
+/// summary screen calls this.
+pub fn write_round_report(
+    store: &tankwalk::store::SledStore,
+    facility: &tankwalk::model::Facility,
+    dir: &std::path::Path,
+    now: DateTime<FixedOffset>,
+) -> Result<String> {
+    let request = Request::round_ending(facility, now, Selection::Room);
+    let report = report::from_store(store, facility, &request)?;
+    std::fs::create_dir_all(dir).with_context(|| format!("cannot create {}", dir.display()))?;
+    let path = dir.join(format!("round-{}.html", now.format("%Y%m%d-%H%M")));
+    report::write_atomically(&path, Format::Html.render(&report).as_bytes())
+        .with_context(|| format!("cannot write {}", path.display()))?;
+    Ok(path.display().to_string())
+}
+
 pub fn run(global: &GlobalArgs, args: &ReportArgs) -> Result<ExitCode> {
     // Everything is parsed and checked before the store is opened.
     let now = input::now_local();

@@ -81,10 +81,12 @@ fn operator() -> String {
 }
 
 /// Saves go to the store (durable when `append` returns); exports go to the
-/// data folder's `exports/`.
+/// data folder's `exports/`, round reports to its `reports/`.
 struct StoreRecords {
     store: SledStore,
+    facility: Facility,
     exports: PathBuf,
+    reports: PathBuf,
     saved: usize,
 }
 
@@ -95,6 +97,11 @@ impl Records for StoreRecords {
 
     fn export(&mut self) -> Result<String, String> {
         export_json_lines(&self.store, &self.exports).map_err(|e| format!("{e:#}"))
+    }
+
+    fn report(&mut self) -> Result<String, String> {
+        super::report::write_round_report(&self.store, &self.facility, &self.reports, now())
+            .map_err(|e| format!("{e:#}"))
     }
 }
 
@@ -145,7 +152,13 @@ fn run_screen(
     let session = SessionInfo { operator: operator(), device: store.device(), id_seed: Ulid::generate().random() };
     let mut app = App::new(facility, records, session, started);
     app.colour = terminal::colour_wanted();
-    let mut records = StoreRecords { store, exports: data_dir.join("exports"), saved: 0 };
+    let mut records = StoreRecords {
+        store,
+        facility: app.facility.clone(),
+        exports: data_dir.join("exports"),
+        reports: data_dir.join("reports"),
+        saved: 0,
+    };
     run::run(&mut app, keymap, &mut records, &now)?;
     Ok(records.saved)
 }
