@@ -38,15 +38,29 @@ pub fn gather(facility: &Facility, entries: &[Entry], request: &Request) -> Resu
     let entries: Vec<&Entry> = entries.iter().filter(|e| e.original.taken_at <= end).collect();
     let records = current_records(&entries, offset);
     let by_id: HashMap<Ulid, &Record> = records.iter().map(|r| (r.id, r)).collect();
+    // Indexes by target, so each tank and water reads only its own records.
+    let mut by_target: HashMap<Target, Vec<usize>> = HashMap::new();
+    for (i, record) in records.iter().enumerate() {
+        if let Some(target) = record.body.target() {
+            by_target.entry(target.clone()).or_default().push(i);
+        }
+    }
+    let mut entries_by_target: HashMap<Target, Vec<&Entry>> = HashMap::new();
+    for entry in &entries {
+        if let Some(target) = entry.target() {
+            entries_by_target.entry(target.clone()).or_default().push(entry);
+        }
+    }
     let units = Units {
         temperature: facility.room.temperature_unit.symbol(),
         volume: facility.room.volume_unit.symbol(),
         temperature_unit: facility.room.temperature_unit,
     };
     let interval = Duration::hours(i64::from(facility.room.round_interval_hours));
-    let gatherer = Gatherer { facility, request, records: &records, by_id, units, interval, offset };
+    let gatherer =
+        Gatherer { facility, request, records: &records, by_id, by_target, entries_by_target, units, interval, offset };
 
-    let tanks: Vec<TankFacts> = selected.iter().map(|tank| gatherer.tank_facts(tank, &entries)).collect();
+    let tanks: Vec<TankFacts> = selected.iter().map(|tank| gatherer.tank_facts(tank)).collect();
     let round = gatherer.round(&tanks);
     let attention = gatherer.attention(&tanks);
     let sightings = gatherer.sightings(&selected);
@@ -54,10 +68,9 @@ pub fn gather(facility: &Facility, entries: &[Entry], request: &Request) -> Resu
     let (waters, not_charted) = gatherer.waters(&selection, &selected, &concerning, &sightings);
 
     let targets = targets_of_tanks(facility, &selected);
-    let in_period = |r: &&Record| request.period.contains(&r.taken_at);
-    let about = |r: &&Record| r.body.target().is_some_and(|t| targets.contains(t));
-    let readings = records.iter().filter(in_period).filter(about).filter(|r| r.body.as_reading().is_some()).count();
-    let events = records.iter().filter(in_period).filter(about).filter(|r| r.body.as_event().is_some()).count();
+    let in_period: Vec<&Record> = gatherer.about(&targets).filter(|r| request.period.contains(&r.taken_at)).collect();
+    let readings = in_period.iter().filter(|r| r.body.as_reading().is_some()).count();
+    let events = in_period.iter().filter(|r| r.body.as_event().is_some()).count();
     let mut counts = Counts {
         tanks: round.tanks.len(),
         attention: attention.iter().map(|c| c.tanks.len()).sum(),
@@ -234,25 +247,31 @@ struct Gatherer<'a> {
     request: &'a Request,
     records: &'a [Record],
     by_id: HashMap<Ulid, &'a Record>,
+    by_target: HashMap<Target, Vec<usize>>,
+    entries_by_target: HashMap<Target, Vec<&'a Entry>>,
     units: Units,
     interval: Duration,
     offset: FixedOffset,
 }
 
 impl<'a> Gatherer<'a> {
-    fn tank_facts(&self, tank: &'a Tank, entries: &[&Entry]) -> TankFacts<'a> {
+    fn tank_facts(&self, tank: &'a Tank) -> TankFacts<'a> {
         let targets = targets_of(self.facility, tank);
-        let timeline =
-            Timeline::from_entries(entries.iter().copied().filter(|e| e.target().is_some_and(|t| targets.contains(t))));
+        let entries = targets.iter().filter_map(|t| self.entries_by_target.get(t)).flatten().copied();
+        let timeline = Timeline::from_entries(entries);
         let state = state_at(&timeline, self.request.end().to_utc(), self.interval);
         let assessment =
             state.as_ref().map(|s| timeline.assess(self.facility, tank, &s.reading, s.at, &self.request.config));
         TankFacts { tank, state, assessment }
     }
 
-    /// Records about any of `targets`.
-    fn about<'r>(&'r self, targets: &'r [Target]) -> impl Iterator<Item = &'r Record> + 'r {
-        self.records.iter().filter(move |r| r.body.target().is_some_and(|t| targets.contains(t)))
+    /// Records about any of `targets`, oldest first.
+    fn about(&self, targets: &[Target]) -> impl Iterator<Item = &'a Record> + use<'a> {
+        let mut at: Vec<usize> = targets.iter().filter_map(|t| self.by_target.get(t)).flatten().copied().collect();
+        at.sort_unstable();
+        at.dedup();
+        let records = self.records;
+        at.into_iter().map(move |i| &records[i])
     }
 
     fn round(&self, tanks: &[TankFacts<'_>]) -> RoundSummary {
@@ -500,12 +519,11 @@ impl<'a> Gatherer<'a> {
 
     fn sightings(&self, selected: &[&Tank]) -> Vec<Sighting> {
         let targets = targets_of_tanks(self.facility, selected);
-        self.records
-            .iter()
+        self.about(&targets)
             .filter(|r| self.request.period.contains(&r.taken_at))
             .filter_map(|r| {
                 let reading = r.body.as_reading()?;
-                if !targets.contains(&reading.target) || reading.observations.is_empty() {
+                if reading.observations.is_empty() {
                     return None;
                 }
                 Some(Sighting {
@@ -593,13 +611,8 @@ impl<'a> Gatherer<'a> {
         let edges = profile.band_edges;
         let salinity = tanks.first().map_or(0.0, |t| self.facility.salinity_g_l(t));
         let period = &self.request.period;
-        let about = |body: &RecordBody| body.target().is_some_and(|t| targets.contains(t));
-        let readings: Vec<(&Record, &Reading)> = self
-            .records
-            .iter()
-            .filter(|r| about(&r.body))
-            .filter_map(|r| r.body.as_reading().map(|reading| (r, reading)))
-            .collect();
+        let readings: Vec<(&Record, &Reading)> =
+            self.about(&targets).filter_map(|r| r.body.as_reading().map(|reading| (r, reading))).collect();
         let in_period: Vec<&(&Record, &Reading)> =
             readings.iter().filter(|(r, _)| period.contains(&r.taken_at)).collect();
 
@@ -650,9 +663,8 @@ impl<'a> Gatherer<'a> {
             })
             .collect();
         let events: Vec<EventView> = self
-            .records
-            .iter()
-            .filter(|r| period.contains(&r.taken_at) && about(&r.body))
+            .about(&targets)
+            .filter(|r| period.contains(&r.taken_at))
             .filter_map(|r| r.body.as_event().map(|e| (r, e)))
             .enumerate()
             .map(|(i, (r, e))| self.event_view(r, e, Some(i + 1)))
