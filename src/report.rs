@@ -321,7 +321,7 @@ pub struct Counts {
     pub skipped: usize,
     /// Tanks not reached.
     pub not_reached: usize,
-    /// Tanks checked whose band is critical.
+    /// Tanks whose latest reading (within the period) is critical.
     pub critical: usize,
     /// ... act.
     pub act: usize,
@@ -329,7 +329,7 @@ pub struct Counts {
     pub watch: usize,
     /// ... clear.
     pub clear: usize,
-    /// Tanks checked without an NH3 figure (temperature, pH or ammonia missing).
+    /// Tanks whose latest reading has no NH3 figure (temperature, pH or ammonia missing).
     pub no_band: usize,
     /// Tanks on waters whose ammonia would move to a worse band if pH rose.
     pub latent_risks: usize,

@@ -86,14 +86,16 @@ pub fn gather(facility: &Facility, entries: &[Entry], request: &Request) -> Resu
             TankStatus::Skipped => counts.skipped += 1,
             TankStatus::NotReached => counts.not_reached += 1,
         }
-        if tank.status == TankStatus::Done {
-            match tank.band {
-                Some(Band::Critical) => counts.critical += 1,
-                Some(Band::Act) => counts.act += 1,
-                Some(Band::Watch) => counts.watch += 1,
-                Some(Band::Clear) => counts.clear += 1,
-                None => counts.no_band += 1,
-            }
+    }
+    // Bands as the tanks stand: each tank's latest reading within the period.
+    let since = request.period.since.to_utc();
+    for facts in tanks.iter().filter(|f| f.state.as_ref().is_some_and(|s| s.last_seen >= since)) {
+        match facts.assessment.as_ref().and_then(|a| a.band) {
+            Some(Band::Critical) => counts.critical += 1,
+            Some(Band::Act) => counts.act += 1,
+            Some(Band::Watch) => counts.watch += 1,
+            Some(Band::Clear) => counts.clear += 1,
+            None => counts.no_band += 1,
         }
     }
     let title = match &selection {

@@ -187,8 +187,8 @@ fn glance(o: &mut String, report: &RoundReport) {
     card(o, format!("{} / {}", c.done, c.tanks), "tanks checked", "");
     card(o, c.skipped.to_string(), "skipped", "");
     card(o, c.not_reached.to_string(), "not reached", if c.not_reached > 0 { " bad" } else { "" });
-    card(o, c.critical.to_string(), "▲ critical", if c.critical > 0 { " worst" } else { "" });
-    card(o, c.act.to_string(), "◆ act", if c.act > 0 { " bad" } else { "" });
+    card(o, c.critical.to_string(), "▲ critical (latest reading)", if c.critical > 0 { " worst" } else { "" });
+    card(o, c.act.to_string(), "◆ act (latest reading)", if c.act > 0 { " bad" } else { "" });
     card(o, c.latent_risks.to_string(), "hidden risks if pH rose", if c.latent_risks > 0 { " bad" } else { "" });
     card(o, c.deaths.to_string(), "deaths over the period", if c.deaths > 0 { " worst" } else { "" });
     let _ = write!(o, "</div>\n</section>\n");

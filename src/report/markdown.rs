@@ -34,6 +34,7 @@ pub fn render(report: &RoundReport) -> String {
     let _ = writeln!(o, "## Summary\n");
     let _ = writeln!(o, "{}\n", escape(&words::headline(report)));
     let c = &report.counts;
+    let _ = writeln!(o, "Bands are those of each tank's latest reading over the period.\n");
     let _ = writeln!(o, "| Tanks | Done | Skipped | Not reached | ▲ critical | ◆ act | ○ watch | · clear | Deaths |");
     let _ = writeln!(o, "|---:|---:|---:|---:|---:|---:|---:|---:|---:|");
     let _ = writeln!(
@@ -208,7 +209,9 @@ fn waters(o: &mut String, report: &RoundReport) {
 
 fn water(o: &mut String, report: &RoundReport, w: &Water) {
     let _ = writeln!(o, "### {}: {}\n", escape(&words::target(&w.target)), escape(&w.name));
-    let _ = writeln!(o, "- Tanks: {}", escape(&words::tanks(&w.tanks)));
+    if !matches!(w.tanks.as_slice(), [one] if w.target.id() == one) {
+        let _ = writeln!(o, "- Tanks: {}", escape(&words::tanks(&w.tanks)));
+    }
     match &w.latest {
         Some(r) => {
             let _ = writeln!(o, "- Latest {}: {}, {}", when(&r.at), figures(&report.units, r), band(w.band));

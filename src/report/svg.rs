@@ -14,11 +14,11 @@ use std::fmt::Write;
 use chrono::{DateTime, Datelike, Duration, FixedOffset, NaiveTime, TimeZone, Timelike};
 
 /// Width of the drawing, in user units (the `viewBox`).
-pub const WIDTH: f64 = 600.0;
+pub const WIDTH: f64 = 440.0;
 /// Height of the drawing, in user units.
-pub const HEIGHT: f64 = 210.0;
-const LEFT: f64 = 48.0;
-const RIGHT: f64 = WIDTH - 78.0;
+pub const HEIGHT: f64 = 200.0;
+const LEFT: f64 = 44.0;
+const RIGHT: f64 = WIDTH - 72.0;
 const TOP: f64 = 38.0;
 const BOTTOM: f64 = HEIGHT - 30.0;
 const INK: &str = "#1f2933";
@@ -146,7 +146,7 @@ pub fn time_ticks(from: i64, until: i64, offset: FixedOffset, max: usize) -> Vec
     let step_h = TIME_STEPS_HOURS
         .iter()
         .copied()
-        .find(|h| span_hours / h < max as i64)
+        .find(|h| span_hours / h <= max as i64)
         .unwrap_or(TIME_STEPS_HOURS[TIME_STEPS_HOURS.len() - 1]);
     let Some(start) = DateTime::from_timestamp(from, 0) else { return Vec::new() };
     let start = start.with_timezone(&offset);
@@ -306,7 +306,7 @@ pub fn line_chart(chart: &LineChart) -> String {
     }
 
     // Time axis.
-    for (t, label) in time_ticks(from, until, chart.offset, 8) {
+    for (t, label) in time_ticks(from, until, chart.offset, 7) {
         let xx = n(x(t));
         let _ = write!(
             s,

@@ -27,7 +27,7 @@ pub fn render(report: &RoundReport) -> String {
         writeln!(o, "  Tanks {} · done {} · skipped {} · not reached {}", c.tanks, c.done, c.skipped, c.not_reached);
     let _ = writeln!(
         o,
-        "  Tanks checked by band: ▲ critical {} · ◆ act {} · ○ watch {} · · clear {}{}",
+        "  Tanks by the band of their latest reading: ▲ critical {} · ◆ act {} · ○ watch {} · · clear {}{}",
         c.critical,
         c.act,
         c.watch,
@@ -245,7 +245,11 @@ fn waters(o: &mut String, report: &RoundReport) {
 }
 
 fn water(o: &mut String, report: &RoundReport, w: &Water) {
-    let _ = writeln!(o, "  {} · {} · {}", words::target(&w.target), w.name, words::tanks(&w.tanks));
+    let tanks = match w.tanks.as_slice() {
+        [one] if w.target.id() == one => String::new(),
+        many => format!(" · {}", words::tanks(many)),
+    };
+    let _ = writeln!(o, "  {} · {}{tanks}", words::target(&w.target), w.name);
     match &w.latest {
         Some(r) => {
             let _ = writeln!(o, "    Latest {}: {} · {}", when(&r.at), figures(&report.units, r), band(w.band));

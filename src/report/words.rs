@@ -298,20 +298,26 @@ pub fn headline(report: &RoundReport) -> String {
             parts.push(format!("{}.", capitalise(&list(&left))));
         }
     }
-    if c.attention == 0 {
+    if report.attention.is_empty() {
         parts.push("No tank is in act or critical, and no hidden ammonia risk was found.".to_string());
     } else {
-        let mut bad = Vec::new();
-        if c.critical > 0 {
-            bad.push(format!("{} critical", count(c.critical, "tank", "tanks")));
-        }
-        if c.act > 0 {
-            bad.push(format!("{} in act", count(c.act, "tank", "tanks")));
-        }
-        if c.latent_risks > 0 {
-            bad.push(format!("{} with a hidden risk if pH rises", count(c.latent_risks, "tank", "tanks")));
-        }
-        parts.push(format!("Needs attention: {}.", list(&bad)));
+        let waters: Vec<String> = report
+            .attention
+            .iter()
+            .map(|concern| {
+                let what = match concern.band.filter(|b| *b >= Band::Act) {
+                    Some(b) => b.name().to_string(),
+                    None => "hidden risk if pH rises".to_string(),
+                };
+                let tanks = if matches!(concern.target, Target::System(_)) {
+                    format!(", {}", count(concern.tanks.len(), "tank", "tanks"))
+                } else {
+                    String::new()
+                };
+                format!("{} ({what}{tanks})", target(&concern.target))
+            })
+            .collect();
+        parts.push(format!("Needs attention: {}.", list(&waters)));
     }
     if c.deaths > 0 {
         parts.push(format!("{} over the period.", count(c.deaths as usize, "death", "deaths")));
