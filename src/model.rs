@@ -18,7 +18,8 @@ mod validate;
 mod write;
 
 pub use facility::{
-    DEFAULT_ROUND_INTERVAL_HOURS, Facility, Room, RoundOrder, SourceWater, System, Tank, TemperatureUnit, VolumeUnit,
+    DEFAULT_OPTIONAL_FIELDS, DEFAULT_OPTIONAL_FIELDS_SALT, DEFAULT_READING_FIELDS, DEFAULT_ROUND_INTERVAL_HOURS,
+    Facility, FieldOrder, ReadingField, Room, RoundOrder, SourceWater, System, Tank, TemperatureUnit, VolumeUnit,
 };
 pub use id::{Id, IdError};
 pub use load::Checked;

@@ -49,6 +49,7 @@ fn valid_room_gets_a_one_screen_summary() {
         "RACK-A",
         "12 tanks",
         "round     A-01 A-02",
+        "fields    temperature, ph, total-ammonia, nitrite; optional: nitrate, salinity, dissolved-oxygen (the default)",
         "ok: sample-rooms/harbourside-holding.toml is a valid facility file",
     ] {
         assert!(stdout.contains(needle), "missing {needle:?} in\n{stdout}");
@@ -63,6 +64,10 @@ fn every_sample_room_passes() {
     for name in ["harbourside-holding.toml", "cattail-bend-tubs.toml", "saltmarsh-marine.toml"] {
         let out = run(data.path(), &["check-room", sample(name).to_str().unwrap()]);
         assert_eq!(out.status.code(), Some(0), "{name}: {}", text(&out.stdout));
+        if name == "cattail-bend-tubs.toml" {
+            let fields = "fields    ph, temperature, total-ammonia, nitrite; optional: nitrate, alkalinity, salinity";
+            assert!(text(&out.stdout).contains(fields), "{}", text(&out.stdout));
+        }
     }
 }
 

@@ -6,7 +6,7 @@
 use std::path::Path;
 
 use chrono::NaiveDate;
-use tankwalk::model::{Facility, Problem, Severity};
+use tankwalk::model::{Facility, Problem, ReadingField, Severity};
 
 const ROOM: &str = r#"[room]
 name = "Test room"
@@ -609,6 +609,95 @@ fn round_order_word_must_be_known() {
 fn round_order_that_misses_tanks_is_a_warning() {
     let room = format!("{ROOM}round_order = [\"A-02\"] # <-\n");
     one_warning(&format!("{room}{GUPPY}{RACK}{TANKS}"), "round_order does not reach A-01: walked last");
+}
+
+// ----- the walk's fields -----
+
+#[test]
+fn reading_fields_set_the_walks_order_and_the_rest_keep_their_defaults() {
+    let room = format!("{ROOM}reading_fields = [\"ph\", \"temperature\", \"total-ammonia\"]\n");
+    let f = Facility::parse(&format!("{room}{GUPPY}{RACK}{TANKS}"), Path::new("room.toml")).unwrap();
+    let order = f.field_order(&f.tanks[0]);
+    assert_eq!(order.routine, [ReadingField::Ph, ReadingField::Temperature, ReadingField::TotalAmmonia]);
+    // Not listed, nitrite is not asked for; the optional fields are the defaults.
+    assert_eq!(order.optional, [ReadingField::Nitrate, ReadingField::Salinity, ReadingField::DissolvedOxygen]);
+}
+
+#[test]
+fn names_of_fields_ignore_case_and_take_underscores() {
+    let room = format!(
+        "{ROOM}reading_fields = [\"Temperature\", \"pH\", \"total_ammonia\"]\noptional_fields = [\"Dissolved Oxygen\"]\n"
+    );
+    let f = Facility::parse(&format!("{room}{GUPPY}{RACK}{TANKS}"), Path::new("room.toml")).unwrap();
+    assert_eq!(f.room.optional_fields, Some(vec![ReadingField::DissolvedOxygen]));
+}
+
+#[test]
+fn unknown_reading_field() {
+    let room = format!("{ROOM}reading_fields = [\"temperature\", \"ph\", \"total-amonia\"] # <-\n");
+    let e = one_error(
+        &format!("{room}{GUPPY}{RACK}{TANKS}"),
+        "reading_fields names 'total-amonia', which is not a reading field (did you mean 'total-ammonia'?)",
+    );
+    assert_eq!(e.field, "room.reading_fields[2]");
+    assert_eq!(e.column, 40);
+}
+
+#[test]
+fn unknown_optional_field_lists_the_known_ones() {
+    let room = format!("{ROOM}optional_fields = [\n  \"nitrate\",\n  \"hardness\", # <-\n]\n");
+    one_error(
+        &format!("{room}{GUPPY}{RACK}{TANKS}"),
+        "optional_fields names 'hardness', which is not a reading field; the walk takes temperature, ph, total-ammonia",
+    );
+}
+
+#[test]
+fn reading_field_listed_twice() {
+    let room = format!("{ROOM}reading_fields = [\"temperature\", \"ph\",\n  \"total-ammonia\", \"PH\"] # <-\n");
+    one_error(
+        &format!("{room}{GUPPY}{RACK}{TANKS}"),
+        "'PH' is listed twice in reading_fields (first on line 4); each field is read once",
+    );
+}
+
+#[test]
+fn reading_field_in_both_lists() {
+    let room = format!(
+        "{ROOM}reading_fields = [\"temperature\", \"ph\", \"total-ammonia\", \"nitrite\"]\noptional_fields = [\"nitrate\", \"nitrite\"] # <-\n"
+    );
+    one_error(
+        &format!("{room}{GUPPY}{RACK}{TANKS}"),
+        "'nitrite' is in both reading_fields (line 4) and optional_fields; a field is read every time or is optional",
+    );
+}
+
+#[test]
+fn reading_fields_without_what_nh3_needs() {
+    let room = format!("{ROOM}reading_fields = [\"temperature\", \"nitrite\"] # <-\n");
+    one_error(
+        &format!("{room}{GUPPY}{RACK}{TANKS}"),
+        "reading_fields leaves out ph and total-ammonia: NH3 cannot be computed without temperature, pH and total ammonia",
+    );
+    // Optional, they are still there to type: that is allowed.
+    let room = format!(
+        "{ROOM}reading_fields = [\"temperature\", \"nitrite\"]\noptional_fields = [\"ph\", \"total-ammonia\"]\n"
+    );
+    let (errors, warnings) = problems(&format!("{room}{GUPPY}{RACK}{TANKS}"));
+    assert!(errors.is_empty() && warnings.is_empty(), "{}{}", list(&errors), list(&warnings));
+}
+
+#[test]
+fn empty_reading_fields() {
+    let room =
+        format!("{ROOM}reading_fields = [] # <-\noptional_fields = [\"temperature\", \"ph\", \"total-ammonia\"]\n");
+    one_error(&format!("{room}{GUPPY}{RACK}{TANKS}"), "reading_fields is empty; list the fields read at every tank");
+}
+
+#[test]
+fn reading_fields_must_be_a_list() {
+    let room = format!("{ROOM}reading_fields = \"ph\" # <-\n");
+    one_error(&format!("{room}{GUPPY}{RACK}{TANKS}"), "'reading_fields' must be a list in [ ], not string");
 }
 
 // ----- many at once -----

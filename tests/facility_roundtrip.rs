@@ -8,8 +8,8 @@ use proptest::prelude::*;
 use tankwalk::core::band::BandEdges;
 use tankwalk::core::units::AmmoniaBasis;
 use tankwalk::model::{
-    Bounds, Facility, Id, Room, RoundOrder, SourceWater, SpeciesProfile, System, Tank, TemperatureUnit, VolumeUnit,
-    WaterType,
+    Bounds, Facility, Id, ReadingField, Room, RoundOrder, SourceWater, SpeciesProfile, System, Tank, TemperatureUnit,
+    VolumeUnit, WaterType,
 };
 
 fn id(prefix: &str, i: usize, tail: &str) -> Id {
@@ -79,6 +79,30 @@ fn water() -> impl Strategy<Value = (WaterType, f64)> {
     ]
 }
 
+/// The room's field lists, as a valid file may give them: both, one, or neither.
+/// With both, every field the room reads is in one of them, NH3's three among them;
+/// a routine list alone holds NH3's three itself.
+fn field_lists() -> impl Strategy<Value = (Option<Vec<ReadingField>>, Option<Vec<ReadingField>>)> {
+    (Just(ReadingField::ALL.to_vec()).prop_shuffle(), any::<u16>(), 0usize..=9, 0u8..4).prop_map(
+        |(shuffled, mask, split, which)| {
+            let kept: Vec<ReadingField> = shuffled
+                .iter()
+                .enumerate()
+                .filter(|(i, f)| ReadingField::FOR_NH3.contains(f) || mask & (1 << i) != 0)
+                .map(|(_, f)| *f)
+                .collect();
+            let split = split.clamp(1, kept.len());
+            match which {
+                0 => (None, None),
+                1 => (Some(kept), None),
+                // Any fields at all may be optional: the default routine list keeps the rest.
+                2 => (None, Some(shuffled.into_iter().filter(|f| !kept.contains(f) || mask & 1 != 0).collect())),
+                _ => (Some(kept[..split].to_vec()), Some(kept[split..].to_vec())),
+            }
+        },
+    )
+}
+
 fn room() -> impl Strategy<Value = Room> {
     let source = proptest::option::of((
         proptest::option::of(5.0..10.0f64),
@@ -98,9 +122,10 @@ fn room() -> impl Strategy<Value = Room> {
         any::<bool>(),
         source,
         1u32..=168,
+        field_lists(),
         notes(),
     )
-        .prop_map(|(name, elevation_m, kit_basis, fahrenheit, gallons, source_water, hours, notes)| Room {
+        .prop_map(|(name, elevation_m, kit_basis, fahrenheit, gallons, source_water, hours, fields, notes)| Room {
             name,
             elevation_m,
             kit_basis,
@@ -109,6 +134,8 @@ fn room() -> impl Strategy<Value = Room> {
             round_order: RoundOrder::AsListed,
             source_water,
             round_interval_hours: hours,
+            reading_fields: fields.0,
+            optional_fields: fields.1,
             notes,
         })
 }
@@ -186,6 +213,26 @@ fn facility() -> impl Strategy<Value = Facility> {
             }
             Facility { room, species, systems, tanks }
         })
+}
+
+#[test]
+fn the_rooms_field_lists_are_written_and_read_back() {
+    let text = "[room]\nname = \"Bench\"\nkit_basis = \"n\"\nreading_fields = [\"ph\", \"Temperature\", \"total_ammonia\"]\n\
+                optional_fields = []\n\n[[tanks]]\nid = \"T-1\"\nvolume_l = 40\nwater_type = \"fresh\"\nset_up = 2024-01-01\n";
+    let f = Facility::parse(text, Path::new("bench.toml")).unwrap();
+    let written = f.to_toml_string();
+    assert!(written.contains("reading_fields = [\"ph\", \"temperature\", \"total-ammonia\"]\n"), "{written}");
+    assert!(written.contains("optional_fields = []\n"), "{written}");
+    assert_eq!(Facility::parse(&written, Path::new("written.toml")).unwrap(), f);
+    // A room that does not say is written without them, and keeps the defaults.
+    let plain = Facility::parse(
+        &text.replace("optional_fields = []\n", "").replace("reading_fields", "# reading_fields"),
+        Path::new("plain.toml"),
+    )
+    .unwrap();
+    let written = plain.to_toml_string();
+    assert!(!written.contains("reading_fields") && !written.contains("optional_fields"), "{written}");
+    assert_eq!(Facility::parse(&written, Path::new("written.toml")).unwrap(), plain);
 }
 
 proptest! {

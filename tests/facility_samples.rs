@@ -5,7 +5,7 @@
 use std::path::{Path, PathBuf};
 
 use chrono::NaiveDate;
-use tankwalk::model::{Facility, RoundOrder, WaterType};
+use tankwalk::model::{Facility, ReadingField, RoundOrder, WaterType};
 
 /// A fixed "today" after every date in the samples, so the test does not depend on the clock.
 fn today() -> NaiveDate {
@@ -88,6 +88,13 @@ fn breeder_room_has_about_forty_standalone_tubs_some_new() {
     let t1 = f.tank("T-01").unwrap();
     assert!((t1.volume_l - 378.541_178_4).abs() < 1e-9);
     assert_eq!(f.room.round_order, RoundOrder::AsListed);
+    // The pH pen comes first here, temperature beside it; alkalinity is offered for the rift-lake tubs.
+    let order = f.field_order(t1);
+    assert_eq!(
+        order.routine,
+        [ReadingField::Ph, ReadingField::Temperature, ReadingField::TotalAmmonia, ReadingField::Nitrite]
+    );
+    assert_eq!(order.optional, [ReadingField::Nitrate, ReadingField::Alkalinity, ReadingField::Salinity]);
 }
 
 #[test]
@@ -189,4 +196,8 @@ fn the_documented_example_is_a_valid_room() {
     assert!((tan - 0.2 * 14.007 / 17.031).abs() < 1e-12);
     let round: Vec<&str> = f.round().iter().map(|t| t.id.as_str()).collect();
     assert_eq!(round, ["Q-1", "D-1", "D-2", "D-3"]);
+    // pH first, then temperature and total ammonia; nitrite among the optional fields.
+    let order = f.field_order(f.tank("Q-1").unwrap());
+    assert_eq!(order.routine, [ReadingField::Ph, ReadingField::Temperature, ReadingField::TotalAmmonia]);
+    assert_eq!(order.optional[..2], [ReadingField::Nitrite, ReadingField::Chloride]);
 }

@@ -65,11 +65,12 @@ fn a_scripted_walk_saves_once_per_press_and_quits() {
     let keymap = Keymap::default_map();
     let mut events = vec![key(KeyCode::Char('w'), KeyEventKind::Press), key(KeyCode::Char('w'), KeyEventKind::Release)];
     events.push(Event::Resize(100, 30));
-    events.extend(typed("78"));
+    // The tub room reads pH first, then °F.
+    events.extend(typed("7.2"));
     events.push(key(KeyCode::Enter, KeyEventKind::Press));
     // A release of Enter must not move to a second field.
     events.push(key(KeyCode::Enter, KeyEventKind::Release));
-    events.extend(typed("7.2"));
+    events.extend(typed("78"));
     events.push(key(KeyCode::Enter, KeyEventKind::Press));
     events.extend(typed("0.3"));
     events.push(key(KeyCode::Char('s'), KeyEventKind::Press));

@@ -82,7 +82,8 @@ fn walk_five_tubs_skip_one_quit_and_the_log_has_exactly_those_readings() {
     tmux.wait_for("Room board");
     tmux.keys(&["w"]);
     tmux.wait_for("T-01");
-    // Tubs 1, 2, 4, 5 and 6 are read (°F, pH, total ammonia as NH4+, nitrite); tub 3 is skipped.
+    // Tubs 1, 2, 4, 5 and 6 are read in the room's order (pH, °F, total ammonia as NH4+,
+    // nitrite); tub 3 is skipped.
     let readings = [("T-01", "78", "7.2", "0.3"), ("T-02", "77", "7.4", "0.5"), ("T-04", "79", "7.0", "0.25")];
     let more = [("T-05", "78.5", "7.6", "1.2"), ("T-06", "76", "7.3", "0.1")];
     for (tank, temp, ph, tan) in readings.iter().chain(&more) {
@@ -94,7 +95,7 @@ fn walk_five_tubs_skip_one_quit_and_the_log_has_exactly_those_readings() {
             tmux.wait_for("Skipped T-03");
         }
         tmux.wait_for(&format!(" {tank} "));
-        tmux.keys(&[temp, "Enter", ph, "Enter", tan, "Enter", "0.05", "s"]);
+        tmux.keys(&[ph, "Enter", temp, "Enter", tan, "Enter", "0.05", "s"]);
         tmux.wait_for(&format!("Saved: {tank} is on disk"));
     }
     // The summary writes the round report into the data folder.

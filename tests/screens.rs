@@ -16,7 +16,11 @@ fn now() -> DateTime<FixedOffset> {
 }
 
 fn app() -> App {
-    let facility = Facility::load(std::path::Path::new("sample-rooms/harbourside-holding.toml")).unwrap();
+    app_in("sample-rooms/harbourside-holding.toml")
+}
+
+fn app_in(room: &str) -> App {
+    let facility = Facility::load(std::path::Path::new(room)).unwrap();
     let device = DeviceId(Ulid::from_parts(1, 1));
     let records = tankwalk::demo::history(&facility, device, now(), 60, 11);
     let mut app =
@@ -62,6 +66,18 @@ fn walk_typing_a_reading() {
     let mut app = app();
     press(&mut app, &keymap, &["w", "2", "5", ".", "5", "enter", "7", ".", "6", "enter", "0", ".", "4"]);
     both_sizes("walk_typing", &app, &keymap);
+}
+
+#[test]
+fn walk_in_the_rooms_order() {
+    // The tub room reads pH first, and offers alkalinity among its optional fields.
+    let keymap = Keymap::default_map();
+    let mut app = app_in("sample-rooms/cattail-bend-tubs.toml");
+    press(&mut app, &keymap, &["w", "7", ".", "4", "enter", "7", "8"]);
+    both_sizes("walk_rooms_order", &app, &keymap);
+    let text = draw(&app, &keymap, 80, 24).to_string();
+    let at = |label: &str| text.find(label).unwrap_or_else(|| panic!("{label} not on\n{text}"));
+    assert!(at("pH ") < at("Temperature") && at("Nitrite") < at("optional") && at("optional") < at("Alkalinity"));
 }
 
 #[test]

@@ -8,7 +8,7 @@ use anyhow::Result;
 use clap::Args;
 use serde::Serialize;
 
-use tankwalk::model::{Checked, Facility, LoadError, Problem, RoundOrder, VolumeUnit};
+use tankwalk::model::{Checked, Facility, LoadError, Problem, ReadingField, RoundOrder, VolumeUnit};
 use tankwalk::numfmt::sig;
 
 use super::bad_input;
@@ -80,6 +80,28 @@ fn volume(litres: f64, unit: VolumeUnit) -> String {
     format!("{shown} {}", unit.symbol())
 }
 
+/// The walk's fields: routine ones in order, then the optional ones.
+fn fields_summary(f: &Facility) -> String {
+    let room = &f.room;
+    let salt = f.tanks.iter().filter(|t| f.salinity_g_l(t) > 0.0).count();
+    let all_salt = salt > 0 && salt == f.tanks.len();
+    let order = room.field_order(all_salt);
+    let names = |fields: &[ReadingField]| fields.iter().map(|f| f.name()).collect::<Vec<_>>().join(", ");
+    let optional = if order.optional.is_empty() { "none".to_string() } else { names(&order.optional) };
+    let mut text = format!("{}; optional: {optional}", names(&order.routine));
+    let mut notes = Vec::new();
+    if room.reading_fields.is_none() && room.optional_fields.is_none() {
+        notes.push("the default");
+    }
+    if room.optional_fields.is_none() && salt > 0 && !all_salt && order.optional.contains(&ReadingField::Salinity) {
+        notes.push("salinity first in salted water");
+    }
+    if !notes.is_empty() {
+        text.push_str(&format!(" ({})", notes.join("; ")));
+    }
+    text
+}
+
 fn write_summary(w: &mut impl Write, file: &Path, checked: &Checked) -> std::io::Result<()> {
     let f = &checked.facility;
     let room = &f.room;
@@ -100,6 +122,7 @@ fn write_summary(w: &mut impl Write, file: &Path, checked: &Checked) -> std::io:
         ),
     )?;
     row(w, "due", format!("every {} h after a tank's last reading", room.round_interval_hours))?;
+    row(w, "fields", fields_summary(f))?;
     if let Some(s) = &room.source_water {
         let mut parts = Vec::new();
         if let Some(ph) = s.ph {

@@ -48,6 +48,12 @@ pub struct Room {
     pub source_water: Option<SourceWater>,
     /// Hours after its last reading when a tank is due again.
     pub round_interval_hours: u32,
+    /// The fields read at every tank, in the order the person reads them;
+    /// `None` when the file does not say (see [`Room::field_order`]).
+    pub reading_fields: Option<Vec<ReadingField>>,
+    /// The fields offered below them, filled only when measured; `None` when
+    /// the file does not say (see [`Room::field_order`]).
+    pub optional_fields: Option<Vec<ReadingField>>,
     /// Free notes (who runs the room, when the round is walked).
     pub notes: String,
 }
@@ -57,6 +63,121 @@ impl Room {
     pub fn round_start(&self, now: DateTime<FixedOffset>) -> DateTime<FixedOffset> {
         round_start(now, self.round_interval_hours)
     }
+
+    /// The fields the walk asks for at a tank, routine first: the room's
+    /// lists where it gives them, else [`DEFAULT_READING_FIELDS`] and the
+    /// default optional fields (salinity first in salt water, where it is read
+    /// every time). A list the room leaves out takes its default without the
+    /// fields the other list names.
+    pub fn field_order(&self, salt_water: bool) -> FieldOrder {
+        let default_optional: &[ReadingField] =
+            if salt_water { &DEFAULT_OPTIONAL_FIELDS_SALT } else { &DEFAULT_OPTIONAL_FIELDS };
+        let without = |defaults: &[ReadingField], other: &[ReadingField]| -> Vec<ReadingField> {
+            defaults.iter().copied().filter(|f| !other.contains(f)).collect()
+        };
+        match (&self.reading_fields, &self.optional_fields) {
+            (Some(routine), Some(optional)) => FieldOrder { routine: routine.clone(), optional: optional.clone() },
+            (Some(routine), None) => {
+                FieldOrder { routine: routine.clone(), optional: without(default_optional, routine) }
+            }
+            (None, Some(optional)) => {
+                FieldOrder { routine: without(&DEFAULT_READING_FIELDS, optional), optional: optional.clone() }
+            }
+            (None, None) => {
+                FieldOrder { routine: DEFAULT_READING_FIELDS.to_vec(), optional: default_optional.to_vec() }
+            }
+        }
+    }
+}
+
+/// A value the walk takes at each tank, by its name in the facility file.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub enum ReadingField {
+    /// Water temperature, in the room's temperature unit.
+    Temperature,
+    /// pH.
+    Ph,
+    /// Total ammonia, on the room's kit basis.
+    TotalAmmonia,
+    /// Nitrite, mg/L as N.
+    Nitrite,
+    /// Nitrate, mg/L as N.
+    Nitrate,
+    /// Practical salinity, g/L.
+    Salinity,
+    /// Dissolved oxygen, mg/L.
+    DissolvedOxygen,
+    /// Chloride, mg/L.
+    Chloride,
+    /// Total alkalinity, mg/L as CaCO3.
+    Alkalinity,
+}
+
+impl ReadingField {
+    /// Every field, in the default order.
+    pub const ALL: [ReadingField; 9] = [
+        ReadingField::Temperature,
+        ReadingField::Ph,
+        ReadingField::TotalAmmonia,
+        ReadingField::Nitrite,
+        ReadingField::Nitrate,
+        ReadingField::Salinity,
+        ReadingField::DissolvedOxygen,
+        ReadingField::Chloride,
+        ReadingField::Alkalinity,
+    ];
+
+    /// The fields un-ionized ammonia is computed from: a room must read them.
+    pub const FOR_NH3: [ReadingField; 3] = [ReadingField::Temperature, ReadingField::Ph, ReadingField::TotalAmmonia];
+
+    /// The name in the facility file.
+    pub fn name(self) -> &'static str {
+        match self {
+            ReadingField::Temperature => "temperature",
+            ReadingField::Ph => "ph",
+            ReadingField::TotalAmmonia => "total-ammonia",
+            ReadingField::Nitrite => "nitrite",
+            ReadingField::Nitrate => "nitrate",
+            ReadingField::Salinity => "salinity",
+            ReadingField::DissolvedOxygen => "dissolved-oxygen",
+            ReadingField::Chloride => "chloride",
+            ReadingField::Alkalinity => "alkalinity",
+        }
+    }
+
+    /// The field named `name`: any case, `_` or a space for `-`.
+    pub fn from_name(name: &str) -> Option<ReadingField> {
+        let name = name.trim().to_ascii_lowercase().replace(['_', ' '], "-");
+        ReadingField::ALL.into_iter().find(|f| f.name() == name)
+    }
+}
+
+impl fmt::Display for ReadingField {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self.name())
+    }
+}
+
+/// The fields read at every tank when the room does not say, in order.
+pub const DEFAULT_READING_FIELDS: [ReadingField; 4] =
+    [ReadingField::Temperature, ReadingField::Ph, ReadingField::TotalAmmonia, ReadingField::Nitrite];
+
+/// The optional fields in fresh water when the room does not say.
+pub const DEFAULT_OPTIONAL_FIELDS: [ReadingField; 3] =
+    [ReadingField::Nitrate, ReadingField::Salinity, ReadingField::DissolvedOxygen];
+
+/// The optional fields in salt water when the room does not say: salinity,
+/// read every time there, comes first.
+pub const DEFAULT_OPTIONAL_FIELDS_SALT: [ReadingField; 3] =
+    [ReadingField::Salinity, ReadingField::Nitrate, ReadingField::DissolvedOxygen];
+
+/// The fields of a tank's entry in the walk.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct FieldOrder {
+    /// Read at every tank, in order.
+    pub routine: Vec<ReadingField>,
+    /// Below them, filled only when measured.
+    pub optional: Vec<ReadingField>,
 }
 
 /// The start of the round that `now` falls in: local midnight (in `now`'s
@@ -268,6 +389,12 @@ impl Facility {
         self.system_of(tank).map_or(tank.salinity_g_l, |s| s.salinity_g_l)
     }
 
+    /// The fields the walk asks for at a tank (see [`Room::field_order`]):
+    /// any salt in its water counts as salt water.
+    pub fn field_order(&self, tank: &Tank) -> FieldOrder {
+        self.room.field_order(self.salinity_g_l(tank) > 0.0)
+    }
+
     /// Every tank once, in the order of the round (see [`RoundOrder`]).
     pub fn round(&self) -> Vec<&Tank> {
         let ids = match &self.room.round_order {
@@ -396,6 +523,8 @@ mod tests {
                 round_order: order,
                 source_water: None,
                 round_interval_hours: DEFAULT_ROUND_INTERVAL_HOURS,
+                reading_fields: None,
+                optional_fields: None,
                 notes: String::new(),
             },
             species: vec![
@@ -455,5 +584,41 @@ mod tests {
         assert_eq!(labels(&small_room(RoundOrder::AsListed)), ["Q-1", "A-01", "A-02"]);
         assert_eq!(labels(&small_room(RoundOrder::Ids(vec![id("RACK-A"), id("Q-1")]))), ["A-02", "A-01", "Q-1"]);
         assert_eq!(labels(&small_room(RoundOrder::Ids(vec![id("A-01")]))), ["A-01", "Q-1", "A-02"]);
+    }
+
+    #[test]
+    fn field_order_defaults_to_the_usual_four_and_puts_salinity_first_in_salt_water() {
+        use ReadingField::*;
+        let mut room = small_room(RoundOrder::AsListed).room;
+        let fresh = room.field_order(false);
+        assert_eq!(fresh.routine, [Temperature, Ph, TotalAmmonia, Nitrite]);
+        assert_eq!(fresh.optional, [Nitrate, Salinity, DissolvedOxygen]);
+        assert_eq!(room.field_order(true).optional, [Salinity, Nitrate, DissolvedOxygen]);
+        // A routine list alone: the default optional fields without those it names.
+        room.reading_fields = Some(vec![Salinity, Ph, Temperature, TotalAmmonia]);
+        assert_eq!(room.field_order(false).optional, [Nitrate, DissolvedOxygen]);
+        // An optional list alone: the usual four without those it names.
+        room.reading_fields = None;
+        room.optional_fields = Some(vec![Nitrite, Alkalinity]);
+        assert_eq!(
+            room.field_order(true),
+            FieldOrder { routine: vec![Temperature, Ph, TotalAmmonia], optional: vec![Nitrite, Alkalinity] }
+        );
+        // Both given: exactly as written, salt water or not.
+        room.reading_fields = Some(vec![Ph, Temperature, TotalAmmonia]);
+        room.optional_fields = Some(vec![]);
+        assert_eq!(
+            room.field_order(true),
+            FieldOrder { routine: vec![Ph, Temperature, TotalAmmonia], optional: vec![] }
+        );
+    }
+
+    #[test]
+    fn reading_field_names_read_back() {
+        for field in ReadingField::ALL {
+            assert_eq!(ReadingField::from_name(field.name()), Some(field));
+            assert_eq!(ReadingField::from_name(&field.name().to_uppercase().replace('-', "_")), Some(field));
+        }
+        assert_eq!(ReadingField::from_name("ammonia"), None);
     }
 }

@@ -17,6 +17,8 @@ pub(super) struct RawRoom {
     pub volume_unit: Option<Spanned<String>>,
     pub round_order: Option<Spanned<OneOrMany>>,
     pub round_interval_hours: Option<Spanned<u32>>,
+    pub reading_fields: Option<Spanned<Vec<Spanned<String>>>>,
+    pub optional_fields: Option<Spanned<Vec<Spanned<String>>>>,
     pub source_water: Option<Spanned<RawSourceWater>>,
     #[serde(default)]
     pub notes: String,

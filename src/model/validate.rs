@@ -14,7 +14,8 @@ use chrono::NaiveDate;
 use toml::Spanned;
 
 use super::facility::{
-    DEFAULT_ROUND_INTERVAL_HOURS, Facility, Room, RoundOrder, SourceWater, System, Tank, TemperatureUnit, VolumeUnit,
+    DEFAULT_ROUND_INTERVAL_HOURS, Facility, ReadingField, Room, RoundOrder, SourceWater, System, Tank, TemperatureUnit,
+    VolumeUnit,
 };
 use super::id::Id;
 use super::load::{Context, Entry, RawFile, closest};
@@ -87,6 +88,9 @@ pub(super) fn build(raw: RawFile, today: Option<NaiveDate>, ctx: &mut Context) -
         tanks: tanks.into_iter().map(|t| t.map(|t| t.tank)).collect::<Option<Vec<_>>>()?,
     })
 }
+
+/// The room's `reading_fields` and `optional_fields`, each when given.
+type FieldLists = (Option<Vec<ReadingField>>, Option<Vec<ReadingField>>);
 
 struct Validator<'c, 'a> {
     ctx: &'c mut Context<'a>,
@@ -344,9 +348,11 @@ impl Validator<'_, '_> {
             Some(w) => self.source_water(w, kit_basis).map(Some),
             None => Some(None),
         };
+        let fields = self.field_lists(raw);
         if self.ctx.error_count() > errors {
             return None;
         }
+        let (reading_fields, optional_fields) = fields?;
         Some(Room {
             name,
             elevation_m: elevation_m?,
@@ -356,8 +362,96 @@ impl Validator<'_, '_> {
             round_order: RoundOrder::AsListed,
             source_water: source_water?,
             round_interval_hours: round_interval_hours?,
+            reading_fields,
+            optional_fields,
             notes: raw.notes.clone(),
         })
+    }
+
+    /// `reading_fields` and `optional_fields`: known names, each field in one
+    /// place, and the fields NH3 is computed from read somewhere.
+    fn field_lists(&mut self, raw: &RawRoom) -> Option<FieldLists> {
+        let errors = self.ctx.error_count();
+        let mut seen = Vec::new();
+        let routine = raw.reading_fields.as_ref().map(|list| self.field_list(list, "reading_fields", &mut seen));
+        let optional = raw.optional_fields.as_ref().map(|list| self.field_list(list, "optional_fields", &mut seen));
+        if let Some(list) = raw.reading_fields.as_ref().filter(|l| l.get_ref().is_empty()) {
+            self.ctx.error(
+                &list.span(),
+                "room.reading_fields",
+                "[room]: reading_fields is empty; list the fields read at every tank, in the order they are read, \
+                 like [\"temperature\", \"ph\", \"total-ammonia\", \"nitrite\"]",
+            );
+        }
+        if self.ctx.error_count() > errors {
+            return None;
+        }
+        // Left out, the optional list holds none of these: only a routine list given can miss them.
+        if let (Some(list), Some(routine)) = (&raw.reading_fields, &routine) {
+            let missing: Vec<&str> = ReadingField::FOR_NH3
+                .into_iter()
+                .filter(|f| !routine.contains(f) && !optional.as_ref().is_some_and(|o| o.contains(f)))
+                .map(ReadingField::name)
+                .collect();
+            if !missing.is_empty() {
+                let them = if missing.len() == 1 { "it" } else { "them" };
+                let where_ = if optional.is_some() { "optional_fields" } else { "an optional_fields list" };
+                self.ctx.error(
+                    &list.span(),
+                    "room.reading_fields",
+                    format!(
+                        "[room]: reading_fields leaves out {}: NH3 cannot be computed without temperature, pH and \
+                         total ammonia; add {them} here or to {where_}",
+                        and_list(&missing)
+                    ),
+                );
+                return None;
+            }
+        }
+        Some((routine, optional))
+    }
+
+    /// One list of field names; `seen` holds the fields of the lists read before, with their key and place.
+    fn field_list(
+        &mut self,
+        list: &Spanned<Vec<Spanned<String>>>,
+        key: &'static str,
+        seen: &mut Vec<(ReadingField, &'static str, Range<usize>)>,
+    ) -> Vec<ReadingField> {
+        let mut fields = Vec::new();
+        for (i, item) in list.get_ref().iter().enumerate() {
+            let path = format!("room.{key}[{i}]");
+            let name = item.get_ref();
+            let Some(field) = ReadingField::from_name(name) else {
+                let names: Vec<&str> = ReadingField::ALL.iter().map(|f| f.name()).collect();
+                let near = closest(name, &names).map(|n| format!(" (did you mean '{n}'?)")).unwrap_or_default();
+                self.ctx.error(
+                    &item.span(),
+                    &path,
+                    format!(
+                        "[room]: {key} names '{name}', which is not a reading field{near}; the walk takes {}",
+                        names.join(", ")
+                    ),
+                );
+                continue;
+            };
+            if let Some((_, first_key, first)) = seen.iter().find(|(f, _, _)| *f == field) {
+                let line = self.ctx.line_of(first);
+                let message = if *first_key == key {
+                    format!("[room]: '{name}' is listed twice in {key} (first on line {line}); each field is read once")
+                } else {
+                    format!(
+                        "[room]: '{name}' is in both {first_key} (line {line}) and {key}; a field is read every time \
+                         or is optional, not both"
+                    )
+                };
+                self.ctx.error(&item.span(), &path, message);
+                continue;
+            }
+            seen.push((field, key, item.span()));
+            fields.push(field);
+        }
+        fields
     }
 
     fn source_water(&mut self, w: &Spanned<RawSourceWater>, kit: Option<AmmoniaBasis>) -> Option<SourceWater> {
@@ -1270,6 +1364,15 @@ fn suggest(name: &str, known: &[&str]) -> String {
         Some(near) => format!(" (did you mean '{near}'?)"),
         None if known.is_empty() => String::new(),
         None => format!("; known: {}", list_some(known, 12)),
+    }
+}
+
+/// "a", "a and b", "a, b and c".
+fn and_list(names: &[&str]) -> String {
+    match names {
+        [] => String::new(),
+        [one] => one.to_string(),
+        [rest @ .., last] => format!("{} and {last}", rest.join(", ")),
     }
 }
 

@@ -4,7 +4,7 @@
 
 use serde::Serialize;
 
-use super::facility::{Facility, RoundOrder, TemperatureUnit, VolumeUnit};
+use super::facility::{Facility, ReadingField, RoundOrder, TemperatureUnit, VolumeUnit};
 use super::species::WaterType;
 
 #[derive(Serialize)]
@@ -24,6 +24,10 @@ struct OutRoom<'a> {
     volume_unit: &'static str,
     round_order: OutRoundOrder<'a>,
     round_interval_hours: u32,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    reading_fields: Option<Vec<&'static str>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    optional_fields: Option<Vec<&'static str>>,
     #[serde(skip_serializing_if = "str::is_empty")]
     notes: &'a str,
     #[serde(skip_serializing_if = "Option::is_none")]
@@ -101,6 +105,11 @@ struct OutTank<'a> {
     notes: &'a str,
 }
 
+/// A list of reading fields by name; left out when the room does not give it.
+fn names(fields: Option<&[ReadingField]>) -> Option<Vec<&'static str>> {
+    fields.map(|fields| fields.iter().map(|f| f.name()).collect())
+}
+
 fn water(w: WaterType) -> &'static str {
     w.name()
 }
@@ -129,6 +138,8 @@ impl Facility {
                     RoundOrder::Ids(ids) => OutRoundOrder::Ids(ids.iter().map(|i| i.as_str()).collect()),
                 },
                 round_interval_hours: room.round_interval_hours,
+                reading_fields: names(room.reading_fields.as_deref()),
+                optional_fields: names(room.optional_fields.as_deref()),
                 notes: &room.notes,
                 source_water: room.source_water.as_ref().map(|w| OutSourceWater {
                     ph: w.ph,

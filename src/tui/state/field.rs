@@ -30,6 +30,10 @@ pub enum FieldKind {
     Salinity,
     /// Dissolved oxygen, mg/L.
     DissolvedOxygen,
+    /// Chloride, mg/L.
+    Chloride,
+    /// Total alkalinity, mg/L as CaCO3.
+    Alkalinity,
     /// A water change, percent of the water volume (what-if).
     WaterChangePercent,
     /// A count of fish.
@@ -49,6 +53,8 @@ impl FieldKind {
             FieldKind::Nitrate => "Nitrate",
             FieldKind::Salinity => "Salinity",
             FieldKind::DissolvedOxygen => "Dissolved O2",
+            FieldKind::Chloride => "Chloride",
+            FieldKind::Alkalinity => "Alkalinity",
             FieldKind::WaterChangePercent => "Water change",
             FieldKind::Count => "Count",
             FieldKind::Grams => "Amount",
@@ -66,6 +72,8 @@ impl FieldKind {
             FieldKind::Nitrate => "mg/L NO3-N",
             FieldKind::Salinity => "g/L",
             FieldKind::DissolvedOxygen => "mg/L",
+            FieldKind::Chloride => "mg/L Cl-",
+            FieldKind::Alkalinity => "mg/L CaCO3",
             FieldKind::WaterChangePercent => "%",
             FieldKind::Grams => "g",
         }
@@ -96,6 +104,8 @@ impl FieldKind {
             FieldKind::Nitrate => Quantity::Nitrate,
             FieldKind::Salinity => Quantity::Salinity,
             FieldKind::DissolvedOxygen => Quantity::DissolvedOxygen,
+            FieldKind::Chloride => Quantity::Chloride,
+            FieldKind::Alkalinity => Quantity::Alkalinity,
             FieldKind::WaterChangePercent => {
                 return if (0.0..=100.0).contains(&value) {
                     Ok(None)
@@ -133,6 +143,7 @@ impl FieldKind {
             FieldKind::Nitrate => 5.0,
             FieldKind::Salinity => 1.0,
             FieldKind::DissolvedOxygen => 0.5,
+            FieldKind::Chloride | FieldKind::Alkalinity => 10.0,
             FieldKind::WaterChangePercent => 5.0,
             FieldKind::Count => 1.0,
             FieldKind::Grams => 10.0,

@@ -14,10 +14,10 @@ use ulid::Ulid;
 use crate::core::band::Band;
 use crate::core::sample::WaterSample;
 use crate::core::units::{self, AmmoniaBasis, NitrogenIonBasis};
-use crate::model::facility::{Facility, Tank, TemperatureUnit};
+use crate::model::facility::{Facility, ReadingField, Tank, TemperatureUnit};
 use crate::model::record::{
-    Correction, Measurements, NitrogenReading, Observations, Reading, Record, RecordBody, Sign, Skip, Target,
-    Temperature, TotalAmmonia,
+    Alkalinity, AlkalinityUnit, Correction, Measurements, NitrogenReading, Observations, Reading, Record, RecordBody,
+    Sign, Skip, Target, Temperature, TotalAmmonia,
 };
 use crate::rules::assess::Assessment;
 use crate::rules::trend::{Trend, TrendWindow, trend};
@@ -51,29 +51,41 @@ pub enum Leave {
     Skip,
 }
 
-/// The entry fields of a tank, in the order they are walked: the four
-/// every round needs, then the optional ones.
+/// The entry fields of a tank, in the order they are walked: the room's
+/// routine fields, then its optional ones (see [`Room::field_order`]).
+///
+/// [`Room::field_order`]: crate::model::facility::Room::field_order
 pub fn walk_fields(facility: &Facility, tank: &Tank) -> Vec<FieldKind> {
-    let temperature = match facility.room.temperature_unit {
-        TemperatureUnit::Celsius => FieldKind::TemperatureC,
-        TemperatureUnit::Fahrenheit => FieldKind::TemperatureF,
-    };
-    let mut fields =
-        vec![temperature, FieldKind::Ph, FieldKind::TotalAmmonia(facility.room.kit_basis), FieldKind::Nitrite];
-    // Salt water is read every time; in fresh water salinity is optional.
-    if facility.salinity_g_l(tank) > 0.0 {
-        fields.extend([FieldKind::Salinity, FieldKind::Nitrate, FieldKind::DissolvedOxygen]);
-    } else {
-        fields.extend([FieldKind::Nitrate, FieldKind::Salinity, FieldKind::DissolvedOxygen]);
+    let order = facility.field_order(tank);
+    order.routine.iter().chain(&order.optional).map(|&f| field_kind(facility, f)).collect()
+}
+
+/// How many of a tank's entry fields (the first ones) are read every round;
+/// the rest are optional.
+pub fn routine_fields(facility: &Facility, tank: &Tank) -> usize {
+    facility.field_order(tank).routine.len()
+}
+
+/// The entry field for a reading field, in the room's units.
+fn field_kind(facility: &Facility, field: ReadingField) -> FieldKind {
+    match field {
+        ReadingField::Temperature => match facility.room.temperature_unit {
+            TemperatureUnit::Celsius => FieldKind::TemperatureC,
+            TemperatureUnit::Fahrenheit => FieldKind::TemperatureF,
+        },
+        ReadingField::Ph => FieldKind::Ph,
+        ReadingField::TotalAmmonia => FieldKind::TotalAmmonia(facility.room.kit_basis),
+        ReadingField::Nitrite => FieldKind::Nitrite,
+        ReadingField::Nitrate => FieldKind::Nitrate,
+        ReadingField::Salinity => FieldKind::Salinity,
+        ReadingField::DissolvedOxygen => FieldKind::DissolvedOxygen,
+        ReadingField::Chloride => FieldKind::Chloride,
+        ReadingField::Alkalinity => FieldKind::Alkalinity,
     }
-    fields
 }
 
 /// A change in NH3-N slower than this, mg/L a day, reads as steady (common practice, no source).
 const STEADY_NH3_N_PER_DAY: f64 = 0.002;
-
-/// How many fields every routine reading fills (the rest are optional).
-pub const ROUTINE_FIELDS: usize = 4;
 
 /// The value a reading holds for a field, in the field's unit.
 pub fn value_for(kind: FieldKind, m: &Measurements) -> Option<f64> {
@@ -86,6 +98,8 @@ pub fn value_for(kind: FieldKind, m: &Measurements) -> Option<f64> {
         FieldKind::Nitrate => m.nitrate_n_mg_l(),
         FieldKind::Salinity => m.salinity_ppt(),
         FieldKind::DissolvedOxygen => m.dissolved_oxygen_mg_l,
+        FieldKind::Chloride => m.chloride_mg_l,
+        FieldKind::Alkalinity => m.alkalinity_mg_l_caco3(),
         FieldKind::WaterChangePercent | FieldKind::Count | FieldKind::Grams => None,
     }
 }
@@ -101,7 +115,43 @@ fn put(m: &mut Measurements, kind: FieldKind, value: f64) {
         FieldKind::Nitrate => m.nitrate = Some(NitrogenReading { value, basis: NitrogenIonBasis::N }),
         FieldKind::Salinity => m.salinity = Some(SalinityReading::Ppt { value }),
         FieldKind::DissolvedOxygen => m.dissolved_oxygen_mg_l = Some(value),
+        FieldKind::Chloride => m.chloride_mg_l = Some(value),
+        FieldKind::Alkalinity => m.alkalinity = Some(Alkalinity { value, unit: AlkalinityUnit::MgLCaco3 }),
         FieldKind::WaterChangePercent | FieldKind::Count | FieldKind::Grams => {}
+    }
+}
+
+/// Copies from `stored` the measurements no field of the entry shows, so a
+/// correction made on the walk keeps what was recorded without it (on the
+/// command line, or before the room changed its fields).
+fn keep_unshown(m: &mut Measurements, stored: &Measurements, fields: &[NumberField]) {
+    let shown = |is: fn(FieldKind) -> bool| fields.iter().any(|f| is(f.kind));
+    if !shown(|k| matches!(k, FieldKind::TemperatureC | FieldKind::TemperatureF)) {
+        m.temperature = stored.temperature;
+    }
+    if !shown(|k| k == FieldKind::Ph) {
+        m.ph = stored.ph;
+    }
+    if !shown(|k| matches!(k, FieldKind::TotalAmmonia(_))) {
+        m.total_ammonia = stored.total_ammonia;
+    }
+    if !shown(|k| k == FieldKind::Nitrite) {
+        m.nitrite = stored.nitrite;
+    }
+    if !shown(|k| k == FieldKind::Nitrate) {
+        m.nitrate = stored.nitrate;
+    }
+    if !shown(|k| k == FieldKind::Salinity) {
+        m.salinity = stored.salinity;
+    }
+    if !shown(|k| k == FieldKind::DissolvedOxygen) {
+        m.dissolved_oxygen_mg_l = stored.dissolved_oxygen_mg_l;
+    }
+    if !shown(|k| k == FieldKind::Chloride) {
+        m.chloride_mg_l = stored.chloride_mg_l;
+    }
+    if !shown(|k| k == FieldKind::Alkalinity) {
+        m.alkalinity = stored.alkalinity;
     }
 }
 
@@ -144,6 +194,8 @@ pub struct TankEntry {
     pub tank: usize,
     /// The fields, in walking order.
     pub fields: Vec<NumberField>,
+    /// How many of the fields, the first ones, are read every round (the rest are optional).
+    pub routine: usize,
     /// The field with the cursor.
     pub focus: usize,
     /// What is seen of the fish.
@@ -232,6 +284,7 @@ pub struct SaveDraft {
 pub fn load_entry(app: &App, tank_index: usize) -> TankEntry {
     let tank = app.tank(tank_index);
     let kinds = walk_fields(&app.facility, tank);
+    let routine = routine_fields(&app.facility, tank);
     let own = round::own_this_round(&app.history, tank, app.round_start);
     let system = round::system_this_round(&app.history, tank, app.round_start);
     let own_reading = own.and_then(|e| e.reading());
@@ -301,6 +354,7 @@ pub fn load_entry(app: &App, tank_index: usize) -> TankEntry {
     let mut entry = TankEntry {
         tank: tank_index,
         fields,
+        routine,
         focus,
         observations,
         note,
@@ -708,6 +762,7 @@ pub fn plan_save(app: &App, entry: &TankEntry, draft: &SaveDraft) -> Result<Save
         if correct_system && !changed_carried.is_empty() {
             corrections_needed = true;
             let mut replacement = carried.reading.clone();
+            keep_unshown(&mut system_m, &carried.reading.measurements, &entry.fields);
             replacement.measurements = system_m;
             bodies.push(Staged::Correct(carried.head, Some(RecordBody::Reading(replacement))));
         }
@@ -728,6 +783,12 @@ pub fn plan_save(app: &App, entry: &TankEntry, draft: &SaveDraft) -> Result<Save
     match entry.own {
         Some((head, _)) if own_changed => {
             corrections_needed = true;
+            let stored = round::own_this_round(&app.history, tank, app.round_start)
+                .filter(|e| e.head == head)
+                .and_then(|e| e.reading());
+            if let Some(stored) = stored {
+                keep_unshown(&mut own.measurements, &stored.measurements, &entry.fields);
+            }
             // Everything of the tank's own reading taken away withdraws it.
             let replacement = (!own.is_empty()).then_some(RecordBody::Reading(own));
             bodies.push(Staged::Correct(head, replacement));

@@ -17,7 +17,7 @@ use crate::tui::keymap::{Context, Keymap};
 use crate::tui::state::App;
 use crate::tui::state::field::{Provenance, format_value};
 use crate::tui::state::round::{Due, age};
-use crate::tui::state::walk::{ROUTINE_FIELDS, TankEntry, WalkState};
+use crate::tui::state::walk::{TankEntry, WalkState};
 
 /// The signs a person can toggle, with the action that toggles each.
 const SIGN_KEYS: [(Action, &str, Sign); 5] = [
@@ -104,7 +104,7 @@ fn render_fields(app: &App, entry: &TankEntry, theme: Theme, keymap: &Keymap, fr
     let mut lines: Vec<Line> = Vec::new();
     lines.push(Line::styled(format!("  {:<14}{:<11}{:<13}{:>5}", "", " now", "", "last"), theme.dim()));
     for (i, field) in entry.fields.iter().enumerate() {
-        if i == ROUTINE_FIELDS {
+        if i == entry.routine {
             lines.push(Line::styled("  optional", theme.dim()));
         }
         let focused = i == entry.focus;
