@@ -432,6 +432,25 @@ fn corrections_are_reported_at_their_current_value_and_withdrawn_records_not_at_
     assert_eq!(rack_b["reading"]["by"], "Ines Okafor", "still taken by the person who read it");
 }
 
+#[test]
+fn a_room_with_no_records_gives_a_whole_report_of_nothing_done() {
+    for room in ["harbourside-holding", "cattail-bend-tubs", "saltmarsh-marine"] {
+        let facility =
+            Facility::load(&Path::new(env!("CARGO_MANIFEST_DIR")).join(format!("sample-rooms/{room}.toml"))).unwrap();
+        let report = report::gather(&facility, &[], &Request::round_ending(&facility, now(), Selection::Room)).unwrap();
+        assert_eq!(report.counts.not_reached, facility.tanks.len(), "{room}");
+        assert!(report.attention.is_empty() && report.sightings.is_empty());
+        assert!(report.waters.iter().all(|w| w.latest.is_none() && w.series.iter().all(|s| s.points.is_empty())));
+        let html = Format::Html.render(&report);
+        assert_self_contained(&html);
+        assert!(scraper::Html::parse_document(&html).errors.is_empty(), "{room}");
+        for format in Format::ALL {
+            assert!(!format.render(&report).is_empty());
+        }
+        assert!(Format::Text.render(&report).contains("No tank was checked in this round"), "{room}");
+    }
+}
+
 /// Headless Chromium, when it is installed (Debian's `chromium`).
 fn chromium() -> Option<PathBuf> {
     ["chromium", "chromium-browser", "google-chrome"].iter().find_map(|name| {

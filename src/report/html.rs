@@ -101,6 +101,8 @@ footer { margin-top: 2rem; border-top: 1px solid var(--line); padding-top: 0.6re
   h1 { font-size: 1.35rem; }
   .charts { grid-template-columns: 1fr; }
   .facts { grid-template-columns: 1fr; } .facts dt { margin-top: 0.3rem; }
+  table.open th:nth-child(2), table.open td:nth-child(2) { display: none; }
+  th, td { padding: 0.3rem 0.3rem; }
 }
 @page { margin: 14mm 13mm; }
 @media print {
@@ -424,7 +426,7 @@ fn round(o: &mut String, report: &RoundReport) {
     if !open.is_empty() {
         let _ = write!(
             o,
-            "<h4>Skipped and not reached</h4>\n<div class=\"scroll\"><table>\n<thead><tr><th>Tanks</th><th>System</th><th>Status</th><th>By</th><th>When</th></tr></thead>\n<tbody>\n"
+            "<h4>Skipped and not reached</h4>\n<div class=\"scroll\"><table class=\"open\">\n<thead><tr><th>Tanks</th><th>System</th><th>Status</th><th>By</th><th>When</th></tr></thead>\n<tbody>\n"
         );
         for (tanks, t) in open {
             let status = match t.status {
