@@ -5,13 +5,13 @@
 //! Everything that can be refused (no terminal, no room, a bad keymap, the
 //! data folder in use) is checked before the screen starts.
 
-use std::io::Write as _;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use anyhow::Context as _;
 use chrono::{DateTime, Duration, FixedOffset};
 use clap::{Args, ValueEnum};
+use tankwalk::exchange::{self, ExportOptions, Formats};
 use tankwalk::model::facility::Facility;
 use tankwalk::model::record::Record;
 use tankwalk::store::{SledStore, Store, TimeRange};
@@ -96,7 +96,7 @@ impl Records for StoreRecords {
     }
 
     fn export(&mut self) -> Result<String, String> {
-        export_json_lines(&self.store, &self.exports).map_err(|e| format!("{e:#}"))
+        export_folder(&self.store, &self.exports, &self.facility).map_err(|e| format!("{e:#}"))
     }
 
     fn report(&mut self) -> Result<String, String> {
@@ -105,32 +105,15 @@ impl Records for StoreRecords {
     }
 }
 
-/// Writes every record, one JSON object a line (the journal's record form),
-/// to a new file in `dir`: written to a temporary file, synced, then renamed.
-///
-/// SEAM: the flat-file export (JSON Lines with a header, CSV, manifest) is
-/// its own piece of work; when it lands this calls it instead.
-fn export_json_lines(store: &SledStore, dir: &Path) -> anyhow::Result<String> {
-    std::fs::create_dir_all(dir).with_context(|| format!("creating {}", dir.display()))?;
-    let name = format!("records-{}.jsonl", now().format("%Y%m%d-%H%M%S"));
-    let path = dir.join(&name);
-    let partial = dir.join(format!(".{name}.partial"));
-    let mut file = std::io::BufWriter::new(
-        std::fs::File::create(&partial).with_context(|| format!("creating {}", partial.display()))?,
-    );
-    let mut count = 0usize;
-    for record in store.all()? {
-        serde_json::to_writer(&mut file, &record?)?;
-        file.write_all(b"\n")?;
-        count += 1;
-    }
-    let file = file.into_inner().map_err(|e| e.into_error())?;
-    file.sync_all()?;
-    std::fs::rename(&partial, &path)?;
-    if let Ok(folder) = std::fs::File::open(dir) {
-        let _ = folder.sync_all();
-    }
-    Ok(format!("{} ({count} records)", path.display()))
+/// Exports every record with [`tankwalk::exchange::export`] (the same code as
+/// `tankwalk export`) to a new folder in `dir` named by the time:
+/// `records.jsonl`, `readings.csv` with the room's species edges, `manifest.json`.
+fn export_folder(store: &SledStore, dir: &Path, facility: &Facility) -> anyhow::Result<String> {
+    let folder = dir.join(now().format("%Y%m%d-%H%M%S").to_string());
+    let options = ExportOptions { formats: Formats::Both, since: None, room: Some(facility), room_file: None };
+    let summary = exchange::export(store, &folder, &options, &mut exchange::no_progress)
+        .with_context(|| format!("exporting to {}", folder.display()))?;
+    Ok(format!("{} ({} records, {} reading rows)", folder.display(), summary.records, summary.rows))
 }
 
 /// The records the screen shows: those of the last [`LOADED_DAYS`] days (a
@@ -150,11 +133,12 @@ fn run_screen(
     let started = now();
     let records = load_records(&store, started)?;
     let session = SessionInfo { operator: operator(), device: store.device(), id_seed: Ulid::generate().random() };
+    let exported_room = facility.clone();
     let mut app = App::new(facility, records, session, started);
     app.colour = terminal::colour_wanted();
     let mut records = StoreRecords {
         store,
-        facility: app.facility.clone(),
+        facility: exported_room,
         exports: data_dir.join("exports"),
         reports: data_dir.join("reports"),
         saved: 0,
