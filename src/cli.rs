@@ -18,6 +18,7 @@ mod log;
 mod progress;
 mod rebuild;
 mod record;
+mod report;
 mod room;
 mod screen;
 mod skip;
@@ -103,6 +104,8 @@ enum Command {
     Doctor(doctor::DoctorArgs),
     /// Recreate the record database from the journal (nothing is deleted).
     Rebuild(rebuild::RebuildArgs),
+    /// The round report: who walked it, tanks to act on, trends and deaths, as text, Markdown, HTML or JSON.
+    Report(report::ReportArgs),
     /// Write the records to a folder: JSON Lines (lossless) and CSV (for spreadsheets), with a manifest.
     Export(export::ExportArgs),
     /// Add the records of files exported on other laptops; each file is checked whole first.
@@ -175,6 +178,7 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         Some(Command::Skip(args)) => skip::run(&cli.global, &args),
         Some(Command::Doctor(args)) => doctor::run(&cli.global, &args),
         Some(Command::Rebuild(args)) => rebuild::run(&cli.global, &args),
+        Some(Command::Report(args)) => report::run(&cli.global, &args),
         Some(Command::Export(args)) => export::run(&cli.global, &args),
         Some(Command::Import(args)) => import::run(&cli.global, &args),
         Some(Command::Sync(args)) => sync::run(&cli.global, &args),

@@ -11,6 +11,7 @@
 //! - [`store`]: durable storage of records (journal + sled);
 //! - [`exchange`]: export, import and sync of records between laptops through files;
 //! - [`timeline`]: a tank's stored history, ready for the assessment;
+//! - [`report`]: the round report (data, text, Markdown, HTML with SVG charts, JSON);
 //! - [`tui`]: the terminal screen (keymaps, pure state and update, views);
 //!
 //! The command line (`src/cli.rs`, in the binary) is the only place that
@@ -24,6 +25,7 @@ pub mod exchange;
 pub mod model;
 pub mod numfmt;
 pub mod paths;
+pub mod report;
 pub mod rules;
 pub mod store;
 pub mod timeline;

@@ -426,6 +426,23 @@ fn the_round_ends_on_the_summary() {
 }
 
 #[test]
+fn the_summary_offers_the_round_report() {
+    let mut w = Walk::new();
+    w.keys("w 25 enter 7.6 enter 0.4 s s s");
+    w.keys("25 enter 7.4 enter 0.2 s x enter");
+    assert!(matches!(w.app.screen(), Screen::Summary(_)));
+    assert_eq!(w.keys("r"), [Effect::Report], "r writes the report of the round");
+    assert_eq!(w.status().1, "Writing the round report…");
+    update(&mut w.app, &w.keymap, Input::Reported(Ok("/data/reports/round-20261201-0930.html".into())), now());
+    assert_eq!(
+        w.status(),
+        (StatusKind::Success, "Report written to /data/reports/round-20261201-0930.html".to_string())
+    );
+    update(&mut w.app, &w.keymap, Input::Reported(Err("disk full".into())), now());
+    assert_eq!(w.status(), (StatusKind::Error, "Report failed: disk full".to_string()));
+}
+
+#[test]
 fn notes_and_deaths_go_with_the_reading() {
     let mut w = Walk::new();
     w.keys("w pagedown pagedown pagedown");

@@ -81,11 +81,12 @@ fn operator() -> String {
 }
 
 /// Saves go to the store (durable when `append` returns); exports go to the
-/// data folder's `exports/`.
+/// data folder's `exports/`, round reports to its `reports/`.
 struct StoreRecords {
     store: SledStore,
-    exports: PathBuf,
     facility: Facility,
+    exports: PathBuf,
+    reports: PathBuf,
     saved: usize,
 }
 
@@ -96,6 +97,11 @@ impl Records for StoreRecords {
 
     fn export(&mut self) -> Result<String, String> {
         export_folder(&self.store, &self.exports, &self.facility).map_err(|e| format!("{e:#}"))
+    }
+
+    fn report(&mut self) -> Result<String, String> {
+        super::report::write_round_report(&self.store, &self.facility, &self.reports, now())
+            .map_err(|e| format!("{e:#}"))
     }
 }
 
@@ -130,7 +136,13 @@ fn run_screen(
     let exported_room = facility.clone();
     let mut app = App::new(facility, records, session, started);
     app.colour = terminal::colour_wanted();
-    let mut records = StoreRecords { store, exports: data_dir.join("exports"), facility: exported_room, saved: 0 };
+    let mut records = StoreRecords {
+        store,
+        facility: exported_room,
+        exports: data_dir.join("exports"),
+        reports: data_dir.join("reports"),
+        saved: 0,
+    };
     run::run(&mut app, keymap, &mut records, &now)?;
     Ok(records.saved)
 }

@@ -451,7 +451,7 @@ contexts! {
     WhatIf => "whatif", "What-if panel", TextInput::Number, true,
         [NextField, PreviousField, Increase, Decrease, Erase, ClearField, ResetWhatIf];
     Summary => "summary", "Round summary", TextInput::None, true,
-        [SelectNext, SelectPrevious, SelectFirst, SelectLast, PageDown, PageUp, OpenTank, StartWalk, Export];
+        [SelectNext, SelectPrevious, SelectFirst, SelectLast, PageDown, PageUp, OpenTank, StartWalk, Export, WriteReport];
     Pick => "pick", "Choosing from a list", TextInput::None, false,
         [SelectNext, SelectPrevious, SelectFirst, SelectLast, Confirm, Cancel];
     Prompt => "prompt", "Typing a text or number", TextInput::Free, false, [Confirm, Cancel, Erase, ClearField];
