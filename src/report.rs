@@ -18,7 +18,7 @@ pub mod html;
 pub mod markdown;
 pub mod svg;
 pub mod text;
-mod words;
+pub mod words;
 
 use std::fmt;
 use std::str::FromStr;

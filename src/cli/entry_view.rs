@@ -7,8 +7,8 @@ use ulid::Ulid;
 
 use tankwalk::core::band::{Band, BandEdges};
 use tankwalk::core::sample::{self, Derived};
-use tankwalk::model::Facility;
 use tankwalk::model::record::{DeviceId, EventKind, Measurements, Reading, Record, RecordBody};
+use tankwalk::model::{Facility, TemperatureUnit};
 use tankwalk::numfmt::sig;
 use tankwalk::rules::latent::Latent;
 use tankwalk::rules::trend::Trend;
@@ -226,42 +226,9 @@ pub fn describe_reading(reading: &Reading, assessment: Option<&Assessment>) -> S
     parts.join("  ")
 }
 
-/// A number with at most `decimals` decimals and no trailing zeros: `30`, `12.5`.
-fn plain(x: f64, decimals: usize) -> String {
-    let s = format!("{x:.decimals$}");
-    if s.contains('.') { s.trim_end_matches('0').trim_end_matches('.').to_string() } else { s }
-}
-
-/// What an event says, in words.
+/// What an event says, in words (temperatures in °C: the log has no room units).
 pub fn describe_event(kind: &EventKind) -> String {
-    match kind {
-        EventKind::WaterChange { percent, source_ph, source_tan_n_mg_l, source_temp_c, dechlorinated } => {
-            let mut source = Vec::new();
-            if let Some(ph) = source_ph {
-                source.push(format!("pH {ph:.2}"));
-            }
-            if let Some(tan) = source_tan_n_mg_l {
-                source.push(format!("TAN-N {}", sig(*tan, 3)));
-            }
-            if let Some(t) = source_temp_c {
-                source.push(format!("{t:.1} °C"));
-            }
-            source.push(if *dechlorinated { "dechlorinated".into() } else { "NOT dechlorinated".into() });
-            format!("water change {} % (source {})", plain(*percent, 1), source.join(", "))
-        }
-        EventKind::Medication { class, name } => format!("medication: {name} ({})", class.name()),
-        EventKind::FilterCleaned { rinsed_in_tap_water } => {
-            format!(
-                "filter cleaned ({})",
-                if *rinsed_in_tap_water { "rinsed in tap water" } else { "not in tap water" }
-            )
-        }
-        EventKind::FishAdded { count } => format!("{count} fish added"),
-        EventKind::DeadFishRemoved { count } => format!("{count} dead fish removed"),
-        EventKind::SaltAdded { grams } => format!("{} g salt added", plain(*grams, 1)),
-        EventKind::HeaterSetPoint { temp_c } => format!("heater set to {temp_c:.1} °C"),
-        other => other.name().replace('-', " "),
-    }
+    tankwalk::report::words::event(kind, TemperatureUnit::Celsius)
 }
 
 /// What a record body says, in words.
@@ -319,14 +286,12 @@ mod tests {
             source_temp_c: Some(24.0),
             dechlorinated: false,
         };
-        assert_eq!(describe_event(&wc), "water change 30 % (source pH 7.40, 24.0 °C, NOT dechlorinated)");
+        assert_eq!(describe_event(&wc), "water change 30 % (new water pH 7.4, 24 °C, not dechlorinated)");
         assert_eq!(
             describe_event(&EventKind::Medication { class: MedicationClass::Antibiotic, name: "kanamycin".into() }),
             "medication: kanamycin (antibiotic)"
         );
         assert_eq!(describe_event(&EventKind::SaltAdded { grams: 12.5 }), "12.5 g salt added");
         assert_eq!(describe_event(&EventKind::NitrifyingCultureAdded), "nitrifying culture added");
-        assert_eq!(plain(100.0, 1), "100");
-        assert_eq!(plain(0.26, 1), "0.3");
     }
 }
