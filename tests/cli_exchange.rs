@@ -541,3 +541,22 @@ fn sync_needs_the_shared_folder_to_exist() {
     assert!(String::from_utf8_lossy(&out.stderr).contains("is the network folder or USB stick mounted"));
     assert!(!missing.exists(), "a missing shared folder is not created");
 }
+
+#[test]
+fn the_shared_folder_is_remembered_for_later_syncs() {
+    let a = tempfile::tempdir().unwrap();
+    let b = tempfile::tempdir().unwrap();
+    let shared = tempfile::tempdir().unwrap();
+    let out = tw(a.path(), &["sync"]);
+    assert_eq!(out.status.code(), Some(2), "no folder given or remembered");
+    assert!(String::from_utf8_lossy(&out.stderr).contains("run `tankwalk sync DIR` once"));
+    save(a.path(), &[reading("T-1", 0, 7.2, None)]);
+    save(b.path(), &[reading("T-2", 5, 7.4, None)]);
+    let folder = shared.path().to_str().unwrap();
+    ok(a.path(), &["sync", folder]);
+    ok(b.path(), &["sync", folder]);
+    // Laptop A syncs again without naming the folder, and receives B's reading.
+    let said = ok(a.path(), &["sync"]);
+    assert!(said.contains("received 1 record"), "{said}");
+    assert_eq!(serde_json::from_str::<Value>(&log_json(a.path())).unwrap().as_array().unwrap().len(), 2);
+}

@@ -87,6 +87,7 @@ struct StoreRecords {
     facility: Facility,
     exports: PathBuf,
     reports: PathBuf,
+    data_dir: PathBuf,
     saved: usize,
 }
 
@@ -102,6 +103,24 @@ impl Records for StoreRecords {
     fn report(&mut self) -> Result<String, String> {
         super::report::write_round_report(&self.store, &self.facility, &self.reports, now())
             .map_err(|e| format!("{e:#}"))
+    }
+
+    fn sync(&mut self) -> Result<(String, Vec<Record>), String> {
+        let folder = super::room::recall_in(&self.data_dir, super::sync::SYNC_FOLDER_FILE)
+            .map_err(|e| format!("{e:#}"))?
+            .ok_or("no shared folder yet: run `tankwalk sync DIR` once in a terminal, and tankwalk remembers it")?;
+        let summary =
+            exchange::sync(&mut self.store, &folder, &mut exchange::no_progress).map_err(|e| e.to_string())?;
+        let records = load_records(&self.store, now()).map_err(|e| format!("{e:#}"))?;
+        let sent = summary.sent.as_ref().map_or(0, |s| s.records);
+        let mut said = format!("sent {sent}, received {} new", summary.added());
+        if summary.conflicts() > 0 {
+            said.push_str(&format!(", {} in conflict (see `tankwalk doctor`)", summary.conflicts()));
+        }
+        if !summary.left.is_empty() {
+            said.push_str(&format!(", {} segment(s) left for the next sync", summary.left.len()));
+        }
+        Ok((said, records))
     }
 }
 
@@ -141,6 +160,7 @@ fn run_screen(
         facility: exported_room,
         exports: data_dir.join("exports"),
         reports: data_dir.join("reports"),
+        data_dir: data_dir.to_path_buf(),
         saved: 0,
     };
     run::run(&mut app, keymap, &mut records, &now)?;

@@ -9,26 +9,41 @@ use clap::Args;
 
 use tankwalk::exchange::{self, SyncSummary};
 
-use super::GlobalArgs;
 use super::export::count;
 use super::progress::Bar;
+use super::{GlobalArgs, bad_input};
+
+/// The data folder's file that remembers the shared folder (for the screen's sync key too).
+pub const SYNC_FOLDER_FILE: &str = "sync-folder";
 
 #[derive(Debug, Args)]
 pub struct SyncArgs {
-    /// The shared folder (network share, synced folder or USB stick) every laptop syncs with.
+    /// The shared folder (network share, synced folder or USB stick) every laptop syncs with;
+    /// remembered, so later syncs (and the board's sync key) can leave it out.
     #[arg(value_name = "DIR")]
-    folder: PathBuf,
+    folder: Option<PathBuf>,
     /// Print one JSON object instead of text.
     #[arg(long)]
     json: bool,
 }
 
 pub fn run(global: &GlobalArgs, args: &SyncArgs) -> Result<ExitCode> {
+    let folder = match &args.folder {
+        Some(given) => std::path::absolute(given).map_err(|e| bad_input!("{}: {e}", given.display()))?,
+        None => super::room::recall(global, SYNC_FOLDER_FILE)?.ok_or_else(|| {
+            bad_input!("no shared folder given: run `tankwalk sync DIR` once, and tankwalk remembers it")
+        })?,
+    };
     let mut store = super::open_store(global)?;
     let mut bar = Bar::on_terminal();
-    let summary = exchange::sync(&mut store, &args.folder, &mut |p| bar.update(p))?;
+    let summary = exchange::sync(&mut store, &folder, &mut |p| bar.update(p))?;
     bar.clear();
     drop(store);
+    if args.folder.is_some()
+        && let Err(err) = super::room::remember(global, SYNC_FOLDER_FILE, &folder)
+    {
+        eprintln!("tankwalk: warning: could not remember the shared folder for next time: {err:#}");
+    }
 
     if args.json {
         let mut out = std::io::stdout().lock();

@@ -440,7 +440,7 @@ contexts! {
     Global => "global", "Everywhere", TextInput::None, false, [ToggleHelp, Quit, Back];
     Board => "board", "Room board", TextInput::None, true,
         [SelectNext, SelectPrevious, SelectFirst, SelectLast, PageDown, PageUp, StartWalk, OpenTank, FilterText,
-         FilterBand, ShowSummary, OpenWhatIf];
+         FilterBand, ShowSummary, OpenWhatIf, Sync];
     Walk => "walk", "Walk: entering readings", TextInput::Number, true,
         [NextField, PreviousField, KeepPrevious, Erase, ClearField, SaveAndNext, SkipTank, NextTank, PreviousTank,
          ToggleGasping, ToggleHyperactive, ToggleNervous, ToggleCloudyEyes, ToggleMucus, SetDeaths, EditNote,

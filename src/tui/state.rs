@@ -99,6 +99,9 @@ pub enum Input {
     Exported(Result<String, String>),
     /// The answer to [`Effect::Report`]: where the report went, or why not.
     Reported(Result<String, String>),
+    /// The answer to [`Effect::Sync`]: what was sent and received and the
+    /// records now in the store (the screen's view is rebuilt from them), or why not.
+    Synced(Result<(String, Vec<Record>), String>),
     /// The terminal changed size (the next frame lays out afresh).
     Resize,
     /// Time passed (ages and the round boundary move on).
@@ -114,6 +117,8 @@ pub enum Effect {
     Export,
     /// Write the round report, then answer with [`Input::Reported`].
     Report,
+    /// Sync with the shared folder, then answer with [`Input::Synced`].
+    Sync,
     /// Leave the program (every save has already been answered).
     Quit,
 }
@@ -412,6 +417,16 @@ pub fn update(app: &mut App, keymap: &Keymap, input: Input, now: DateTime<FixedO
         }
         Input::Reported(Err(why)) => {
             app.say(StatusKind::Error, format!("Report failed: {why}"));
+            Vec::new()
+        }
+        Input::Synced(Ok((said, records))) => {
+            app.history = History::from_records(records);
+            app.refresh_statuses();
+            app.say(StatusKind::Success, format!("Synced: {said}"));
+            Vec::new()
+        }
+        Input::Synced(Err(why)) => {
+            app.say(StatusKind::Error, format!("Sync failed: {why}"));
             Vec::new()
         }
         Input::Resize => Vec::new(),
