@@ -377,7 +377,12 @@ fn a_conflict_keeps_the_stored_version_and_sets_the_other_aside() {
         "{stderr}"
     );
     assert!(stderr.contains("body.measurements.ph"), "{stderr}");
-    assert_eq!(log_json(dir), before, "the stored version stays as it was");
+    // The stored version stays as it was; `log` shows the other version beside it.
+    let mut after: Value = serde_json::from_str(&log_json(dir)).unwrap();
+    assert_eq!(after[0]["conflicts"][0]["body"]["measurements"]["ph"], json!(6.9));
+    after[0].as_object_mut().unwrap().remove("conflicts");
+    assert_eq!(after, serde_json::from_str::<Value>(&before).unwrap(), "the stored version stays as it was");
+    assert!(ok(dir, &["log"]).contains("conflict: another laptop's version"));
     // The incoming version is kept, once, however often it comes.
     tw(dir, &["import", file.to_str().unwrap()]);
     let kept = fs::read_to_string(dir.join("conflicts.jsonl")).unwrap();

@@ -65,6 +65,10 @@ pub struct EntryJson {
     pub deaths: Option<u32>,
     pub event: Option<EventKind>,
     pub note: Option<String>,
+    /// Versions of this record that arrived from another laptop with the same id
+    /// but other content (kept aside, never applied; see `tankwalk doctor`).
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub conflicts: Vec<Record>,
     /// The assessment, when the room is known: latent band, trend, biofilter, actions.
     #[serde(flatten, skip_serializing_if = "Option::is_none")]
     pub advice: Option<Advice>,
@@ -171,6 +175,7 @@ pub fn entry_json(entry: &Entry, room: Option<&Facility>, assessment: Option<&As
         deaths: reading.map(|r| r.observations.deaths),
         event: body.as_event().map(|e| e.kind.clone()),
         note: body.note().map(str::to_string),
+        conflicts: Vec::new(),
         advice: assessment.map(Advice::of),
         measurements: m.cloned(),
         trail: if entry.is_corrected() { entry.trail().cloned().collect() } else { Vec::new() },
