@@ -10,14 +10,19 @@ mod correct;
 mod doctor;
 mod entry_view;
 mod event;
+mod export;
+mod import;
 mod input;
 mod keymap;
 mod log;
+mod progress;
 mod rebuild;
 mod record;
+mod report;
 mod room;
 mod screen;
 mod skip;
+mod sync;
 
 use std::process::ExitCode;
 
@@ -99,6 +104,14 @@ enum Command {
     Doctor(doctor::DoctorArgs),
     /// Recreate the record database from the journal (nothing is deleted).
     Rebuild(rebuild::RebuildArgs),
+    /// The round report: who walked it, tanks to act on, trends and deaths, as text, Markdown, HTML or JSON.
+    Report(report::ReportArgs),
+    /// Write the records to a folder: JSON Lines (lossless) and CSV (for spreadsheets), with a manifest.
+    Export(export::ExportArgs),
+    /// Add the records of files exported on other laptops; each file is checked whole first.
+    Import(import::ImportArgs),
+    /// Send new records to a shared folder and take in the other laptops' records from it.
+    Sync(sync::SyncArgs),
 }
 
 /// Opens the record store of the data folder, saying what opening repaired.
@@ -204,6 +217,10 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
         Some(Command::Skip(args)) => skip::run(&cli.global, &args),
         Some(Command::Doctor(args)) => doctor::run(&cli.global, &args),
         Some(Command::Rebuild(args)) => rebuild::run(&cli.global, &args),
+        Some(Command::Report(args)) => report::run(&cli.global, &args),
+        Some(Command::Export(args)) => export::run(&cli.global, &args),
+        Some(Command::Import(args)) => import::run(&cli.global, &args),
+        Some(Command::Sync(args)) => sync::run(&cli.global, &args),
         None => screen::open(&cli.global, &cli.keymap),
     }
 }

@@ -13,8 +13,8 @@ use crate::core::salinity::SalinityReading;
 use crate::core::units::NitrogenIonBasis;
 use crate::model::facility::{Facility, Tank};
 use crate::model::record::{
-    DeviceId, Event, EventKind, Measurements, MedicationClass, NitrogenReading, Reading, Record, RecordBody, Target,
-    Temperature, TotalAmmonia,
+    DeviceId, Event, EventKind, Measurements, MedicationClass, NitrogenReading, Reading, Record, RecordBody, Skip,
+    Target, Temperature, TotalAmmonia,
 };
 
 /// The people who walk the demo rounds (invented).
@@ -284,6 +284,85 @@ pub fn history(facility: &Facility, device: DeviceId, end: DateTime<FixedOffset>
     records
 }
 
+/// This morning's round, begun after a [`history`] that ends the day before
+/// `now` and not finished: the first half of the room's waters (systems once,
+/// standalone tanks each) read from 07:25, the second water's ammonia up
+/// overnight; the last water of that half skipped ("being moved to the new
+/// stand"), the next one read and the one after skipped ("emptied for
+/// cleaning"); the rest not reached. An hour later the second water gets a 30 %
+/// water change with the room's source water. For the round report and its
+/// tests: done, skipped and not reached, and an event after the readings.
+pub fn round_in_progress(
+    facility: &Facility,
+    device: DeviceId,
+    history: &[Record],
+    now: DateTime<FixedOffset>,
+    seed: u64,
+) -> Vec<Record> {
+    let mut rng = Rng::new(seed ^ 0x5EED_0F0D_A100);
+    let mut targets: Vec<Target> = Vec::new();
+    for tank in facility.round() {
+        let target = match &tank.system {
+            Some(system) => Target::System(system.as_str().to_string()),
+            None => Target::Tank(tank.id.as_str().to_string()),
+        };
+        if !targets.contains(&target) {
+            targets.push(target);
+        }
+    }
+    let Some(start) = now.date_naive().and_hms_opt(7, 25, 0).and_then(|t| t.and_local_timezone(*now.offset()).single())
+    else {
+        return Vec::new();
+    };
+    let last_reading = |target: &Target| {
+        history
+            .iter()
+            .rev()
+            .filter_map(|r| r.body.as_reading())
+            .find(|r| &r.target == target && r.water_sample().is_some())
+            .cloned()
+    };
+    let half = targets.len() / 2;
+    let mut records = Vec::new();
+    for (i, target) in targets.iter().enumerate() {
+        let operator = if i + 1 < half { OPERATORS[0] } else { OPERATORS[2] };
+        let at = start + Duration::minutes(6 * i as i64);
+        let skip = |reason: &str, rng: &mut Rng| {
+            record(RecordBody::Skip(Skip { target: target.clone(), reason: reason.into() }), at, operator, device, rng)
+        };
+        if i + 1 < half || i == half {
+            let Some(mut reading) = last_reading(target) else { continue };
+            if i == 1
+                && let Some(tan) = reading.measurements.total_ammonia.as_mut()
+            {
+                tan.value = round_to(tan.value * 2.0 + 0.4, 0.01);
+                reading.note = Some("water hazy, fish at the front glass".into());
+            }
+            records.push(record(RecordBody::Reading(reading), at, operator, device, &mut rng));
+        } else if i + 1 == half {
+            records.push(skip("being moved to the new stand", &mut rng));
+        } else if i == half + 1 {
+            records.push(skip("emptied for cleaning", &mut rng));
+        }
+    }
+    if let Some(second) = targets.get(1) {
+        let water_change = EventKind::WaterChange {
+            percent: 30.0,
+            source_ph: facility.room.source_water.as_ref().and_then(|s| s.ph),
+            source_tan_n_mg_l: None,
+            source_temp_c: facility.room.source_water.as_ref().and_then(|s| s.temp_c),
+            dechlorinated: true,
+        };
+        let mut change =
+            event(second.clone(), start + Duration::minutes(70), OPERATORS[1], device, water_change, &mut rng);
+        if let RecordBody::Event(e) = &mut change.body {
+            e.note = Some("aged water from the vat".into());
+        }
+        records.push(change);
+    }
+    records
+}
+
 fn drift(water: &mut Water, days_left: i64, rng: &mut Rng) {
     water.temp_c = (water.temp_c + 0.15 * rng.signed()).clamp(water.usual_temp_c - 1.0, water.usual_temp_c + 1.0);
     water.ph = (water.ph + 0.04 * rng.signed()).clamp(water.usual_ph - 0.2, water.usual_ph + 0.2);
@@ -394,6 +473,25 @@ mod tests {
             assert!(t_max - t_min <= 2.1, "{water}: temperature {t_min}–{t_max}");
             assert!(ph_max - ph_min <= 0.41, "{water}: pH {ph_min}–{ph_max}");
         }
+    }
+
+    #[test]
+    fn a_round_in_progress_reads_skips_and_leaves_tanks() {
+        let facility = room();
+        let device = DeviceId(Ulid::from_parts(1, 1));
+        let now = end() + Duration::hours(3);
+        let past = history(&facility, device, now, 10, 3);
+        let today = round_in_progress(&facility, device, &past, now, 3);
+        let kinds: Vec<&str> = today.iter().map(|r| r.body.kind_name()).collect();
+        // Harbourside: four racks and four quarantine tanks; the fourth rack and Q-2 skipped, Q-3 and Q-4 left.
+        assert_eq!(kinds, ["reading", "reading", "reading", "skip", "reading", "skip", "event"]);
+        assert_eq!(today[3].body.target(), Some(&Target::System("RACK-D".into())));
+        assert_eq!(today[5].body.target(), Some(&Target::Tank("Q-2".into())));
+        for r in &today {
+            r.check().unwrap();
+            assert_eq!(r.taken_at.date_naive(), now.date_naive());
+        }
+        assert_eq!(today, round_in_progress(&facility, device, &past, now, 3));
     }
 
     #[test]

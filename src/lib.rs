@@ -9,7 +9,9 @@
 //! - [`rules`]: the assessment (band, latent risk, trend, biofilter, actions),
 //!   pure: inputs in, assessment out;
 //! - [`store`]: durable storage of records (journal + sled);
+//! - [`exchange`]: export, import and sync of records between laptops through files;
 //! - [`timeline`]: a tank's stored history, ready for the assessment;
+//! - [`report`]: the round report (data, text, Markdown, HTML with SVG charts, JSON);
 //! - [`tui`]: the terminal screen (keymaps, pure state and update, views);
 //!
 //! The command line (`src/cli.rs`, in the binary) is the only place that
@@ -19,9 +21,11 @@
 
 pub mod core;
 pub mod demo;
+pub mod exchange;
 pub mod model;
 pub mod numfmt;
 pub mod paths;
+pub mod report;
 pub mod rules;
 pub mod store;
 pub mod text;

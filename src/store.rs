@@ -18,7 +18,7 @@ pub mod journal;
 mod keys;
 mod lock;
 pub mod mem;
-mod plan;
+pub(crate) mod plan;
 pub mod repair;
 pub mod sled_store;
 

@@ -206,16 +206,18 @@ fn scenarios() -> Vec<Scenario> {
             &[A::WaterChange, A::Retest],
             &[A::Zeolite, A::AddSalt, A::HoldFeeding, A::LowerTemperature],
         ),
-        // 26 °C, pH 8.0, TAN 1.5: NH3-N 0.086 (act); 24 °C gives 0.075; 5 g/L salt 0.083.
+        // 26 °C, pH 8.0, TAN 1.5: NH3-N 0.086 (act); 24 °C gives 0.075. Guppies take
+        // salt, but A-12's bristlenose catfish share RACK-A's water and take none, and
+        // the mollies on it need 24 °C: zeolite, not salt, and the heater to 24 °C only.
         scenario(
-            "act in a salt-tolerant guppy tank",
+            "act in a guppy tank on a rack shared with salt-shy catfish",
             H,
             "A-03",
             c(26.0, 8.0, 1.5),
             Act,
             Act,
-            &[A::WaterChange, A::HoldFeeding, A::Aerate, A::LowerTemperature, A::AddSalt, A::Retest],
-            &[A::Zeolite, A::AmmoniaBinder],
+            &[A::WaterChange, A::HoldFeeding, A::Aerate, A::LowerTemperature, A::Zeolite, A::Retest],
+            &[A::AddSalt, A::AmmoniaBinder],
         )
         .warns(&[W::SourceWaterAmmonia, W::DoNotCleanFilter]),
         // Neon edges 0.015 / 0.04 / 0.15: 25 °C, pH 7.0, TAN 8: NH3-N 0.045 (act; the
@@ -360,8 +362,8 @@ fn scenarios() -> Vec<Scenario> {
             c(28.0, 8.2, 3.0),
             Critical,
             Critical,
-            &[A::WaterChange, A::AmmoniaBinder, A::HoldFeeding, A::Aerate, A::Retest, A::LowerTemperature],
-            &[A::Zeolite],
+            &[A::WaterChange, A::AmmoniaBinder, A::HoldFeeding, A::Aerate, A::Retest, A::LowerTemperature, A::Zeolite],
+            &[A::AddSalt],
         )
         .warns(&[W::DoNotCleanFilter]),
         scenario(
@@ -807,4 +809,19 @@ mod properties {
             }
         }
     }
+}
+
+#[test]
+fn heater_steps_suit_every_species_on_the_shared_water() {
+    // RACK-A carries guppies (22–28 °C), platies (20–28), swordtails (22–28), mollies
+    // (24–28) and, in A-12, bristlenose catfish (22–27): every species takes 24–27 °C
+    // (room file, values from memory). At 26 °C the heater may go down to 24 °C, not to
+    // the guppies' 22 °C, whichever tank the reading is from.
+    let s = scenario("", H, "A-03", c(26.0, 8.0, 1.5), Act, Act, &[], &[]);
+    let a = run(&s);
+    let cool = action(&a, A::LowerTemperature);
+    assert_eq!((cool.quantity, cool.unit), (Some(24.0), Some("°C")));
+    // From above the shared range (28 °C, catfish to 27 °C), lowering by 2 °C is offered.
+    let s = scenario("", H, "A-08", c(28.0, 8.2, 3.0), Critical, Critical, &[], &[]);
+    assert_eq!(action(&run(&s), A::LowerTemperature).quantity, Some(26.0));
 }

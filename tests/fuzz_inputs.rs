@@ -250,10 +250,19 @@ fn record_lines() -> Vec<Vec<u8>> {
     sample_records().iter().map(|r| serde_json::to_vec(r).unwrap()).collect()
 }
 
-/// A record line's error names its place: serde's line and column, or the
-/// record and the field that failed its check.
-fn record_error_is_located(message: &str) -> bool {
-    if message.contains(" at line ") && message.contains(" column ") {
+/// A record line's error names its place within the line (the callers add
+/// the file and line): the field, serde's column, the record and the field
+/// that failed its check, or that the line is not an object at all.
+fn record_error_is_located(message: &str, line: &[u8]) -> bool {
+    if line.trim_ascii().is_empty() {
+        // Nothing on the line: the line number the caller gives is the place.
+        return !message.trim().is_empty();
+    }
+    if message.starts_with("field \"")
+        || message.contains("field `")
+        || message.contains(" (column ")
+        || message.starts_with("expected a record")
+    {
         return true;
     }
     let Some(rest) = message.strip_prefix("record ") else { return false };
@@ -270,13 +279,15 @@ proptest! {
 
     #[test]
     fn record_json_never_panics_and_every_error_is_located(bytes in input_from(record_lines())) {
+        // A line never holds a newline: readers split on it.
+        let bytes: Vec<u8> = bytes.into_iter().filter(|b| *b != b'\n').collect();
         match journal::parse_record(&bytes) {
             Ok(record) => {
                 // Accepted: it stores and reads back exactly.
                 let again = journal::parse_record(&serde_json::to_vec(&record).unwrap());
                 prop_assert_eq!(again, Ok(record));
             }
-            Err(message) => prop_assert!(record_error_is_located(&message), "not located: {message}"),
+            Err(message) => prop_assert!(record_error_is_located(&message, &bytes), "not located: {message}"),
         }
     }
 }

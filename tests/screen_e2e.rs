@@ -1,7 +1,7 @@
 //! End to end in a real terminal: the real binary in tmux on a sample room
 //! with a temporary data folder walks six tubs (five read, one skipped) and
-//! quits; `tankwalk log --json` must then hold exactly those five readings
-//! and the skip with its reason.
+//! writes the round report from the summary and quits; `tankwalk log --json`
+//! must then hold exactly those five readings and the skip with its reason.
 //!
 //! A second test makes the screen panic (by fault injection) in the middle of
 //! the walk and checks that the terminal is left usable and no save is lost.
@@ -111,6 +111,16 @@ fn walk_five_tubs_skip_one_quit_and_the_log_has_exactly_those_readings() {
         tmux.keys(&[ph, "Enter", temp, "Enter", tan, "Enter", "0.05", "s"]);
         tmux.wait_for(&format!("Saved: {tank} is on disk"));
     }
+    // The summary writes the round report into the data folder.
+    tmux.keys(&["r"]);
+    tmux.wait_for("Round summary");
+    tmux.keys(&["r"]);
+    tmux.wait_for("Report written to");
+    let reports: Vec<_> = std::fs::read_dir(data.path().join("reports")).unwrap().map(|e| e.unwrap().path()).collect();
+    assert_eq!(reports.len(), 1, "{reports:?}");
+    let page = std::fs::read_to_string(&reports[0]).unwrap();
+    assert!(page.starts_with("<!DOCTYPE html>") && page.contains("Cattail Bend tub room"), "{}", reports[0].display());
+    assert!(page.contains("being set up"), "the skip and its reason are in the report");
     tmux.keys(&["q"]);
     tmux.wait_for("tankwalk exited 0");
 

@@ -426,6 +426,23 @@ fn the_round_ends_on_the_summary() {
 }
 
 #[test]
+fn the_summary_offers_the_round_report() {
+    let mut w = Walk::new();
+    w.keys("w 25 enter 7.6 enter 0.4 s s s");
+    w.keys("25 enter 7.4 enter 0.2 s x enter");
+    assert!(matches!(w.app.screen(), Screen::Summary(_)));
+    assert_eq!(w.keys("r"), [Effect::Report], "r writes the report of the round");
+    assert_eq!(w.status().1, "Writing the round report…");
+    update(&mut w.app, &w.keymap, Input::Reported(Ok("/data/reports/round-20261201-0930.html".into())), now());
+    assert_eq!(
+        w.status(),
+        (StatusKind::Success, "Report written to /data/reports/round-20261201-0930.html".to_string())
+    );
+    update(&mut w.app, &w.keymap, Input::Reported(Err("disk full".into())), now());
+    assert_eq!(w.status(), (StatusKind::Error, "Report failed: disk full".to_string()));
+}
+
+#[test]
 fn notes_and_deaths_go_with_the_reading() {
     let mut w = Walk::new();
     w.keys("w pagedown pagedown pagedown");
@@ -561,4 +578,35 @@ fn correcting_a_systems_reading_keeps_the_values_the_walk_does_not_show() {
     assert_eq!(replacement.measurements.ph, Some(7.0));
     assert_eq!(replacement.measurements.nitrite_n_mg_l(), Some(0.2));
     assert_eq!(replacement.measurements.chloride_mg_l, Some(40.0));
+}
+
+#[test]
+fn the_board_syncs_and_shows_what_came_in() {
+    let mut w = Walk::new();
+    assert_eq!(w.keys("u"), [Effect::Sync], "u syncs from the board");
+    assert_eq!(w.status(), (StatusKind::Info, "Syncing with the shared folder…".to_string()));
+    // Another laptop read T-2 this morning: once synced, the board counts it as done.
+    let t2 = w.app.facility.tanks.iter().position(|t| t.id.as_str() == "T-2").unwrap();
+    assert!(w.app.statuses[t2].due.wanted());
+    let mut reading = Reading::new(Target::Tank("T-2".into()));
+    reading.measurements.temperature = Some(Temperature::celsius(25.0));
+    reading.measurements.ph = Some(7.5);
+    reading.measurements.total_ammonia = Some(TotalAmmonia { value: 0.2, basis: AmmoniaBasis::N });
+    let other = Record {
+        id: Ulid::from_parts(2, 99),
+        device: DeviceId(Ulid::from_parts(3, 3)),
+        operator: "Bram Esterhuys".into(),
+        taken_at: now() - Duration::minutes(30),
+        body: RecordBody::Reading(reading),
+    };
+    let mut everything: Vec<Record> = vec![
+        yesterday_reading(Target::System("RACK".into()), 7.5, 0.2),
+        yesterday_reading(Target::Tank("T-1".into()), 7.4, 0.3),
+    ];
+    everything.push(other);
+    update(&mut w.app, &w.keymap, Input::Synced(Ok(("sent 0, received 1 new".into(), everything))), now());
+    assert_eq!(w.status(), (StatusKind::Success, "Synced: sent 0, received 1 new".to_string()));
+    assert!(!w.app.statuses[t2].due.wanted(), "T-2 is done by the other laptop's reading");
+    update(&mut w.app, &w.keymap, Input::Synced(Err("no shared folder yet".into())), now());
+    assert_eq!(w.status(), (StatusKind::Error, "Sync failed: no shared folder yet".to_string()));
 }

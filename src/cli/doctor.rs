@@ -35,6 +35,18 @@ struct DoctorJson {
     database_device: Option<DeviceId>,
     pending: Vec<Ulid>,
     advice: Option<&'static str>,
+    /// Incoming versions of stored records set aside by import or sync.
+    conflicts: Vec<ConflictJson>,
+}
+
+/// One version set aside because its id is stored with other content.
+#[derive(Debug, Serialize)]
+struct ConflictJson {
+    id: Ulid,
+    device: DeviceId,
+    kind: &'static str,
+    taken_at: chrono::DateTime<chrono::FixedOffset>,
+    operator: String,
 }
 
 const REBUILD_ADVICE: &str = "run `tankwalk rebuild`: it recreates the database from the journal (and keeps any \
@@ -46,6 +58,8 @@ pub fn run(global: &GlobalArgs, args: &DoctorArgs) -> Result<ExitCode> {
     let problems = report.problems();
     let agrees = problems.is_empty();
     let advice = (!agrees).then_some(REBUILD_ADVICE);
+    // Conflicts need a person's decision, not a repair: they do not change the exit code.
+    let conflicts = tankwalk::exchange::conflicts::list(&dir)?;
     let mut out = std::io::stdout().lock();
     if args.json {
         let view = DoctorJson {
@@ -61,13 +75,57 @@ pub fn run(global: &GlobalArgs, args: &DoctorArgs) -> Result<ExitCode> {
             database_device: report.database.device,
             pending: report.pending.clone(),
             advice,
+            conflicts: conflicts
+                .iter()
+                .map(|r| ConflictJson {
+                    id: r.id,
+                    device: r.device,
+                    kind: r.body.kind_name(),
+                    taken_at: r.taken_at,
+                    operator: r.operator.clone(),
+                })
+                .collect(),
         };
         serde_json::to_writer_pretty(&mut out, &view)?;
         writeln!(out)?;
     } else {
         write_text(&mut out, &report, &problems, advice)?;
+        write_conflicts(&mut out, &conflicts, &dir)?;
     }
     Ok(if agrees { ExitCode::SUCCESS } else { ExitCode::from(1) })
+}
+
+fn write_conflicts(
+    out: &mut impl Write,
+    conflicts: &[tankwalk::model::record::Record],
+    dir: &std::path::Path,
+) -> Result<()> {
+    if conflicts.is_empty() {
+        return Ok(());
+    }
+    let file = dir.join(tankwalk::exchange::conflicts::FILE_NAME);
+    writeln!(
+        out,
+        "conflicts    {} incoming versions of stored records are set aside in {} (the stored versions are kept):",
+        conflicts.len(),
+        file.display()
+    )?;
+    for r in conflicts {
+        writeln!(
+            out,
+            "  - record {} ({}, taken {}, by {}, device {})",
+            r.id,
+            r.body.kind_name(),
+            r.taken_at.format("%Y-%m-%d %H:%M"),
+            r.operator,
+            r.device
+        )?;
+    }
+    writeln!(
+        out,
+        "compare each with `tankwalk log --json`; when the set-aside version is the right one, enter it with `tankwalk correct`"
+    )?;
+    Ok(())
 }
 
 fn write_text(out: &mut impl Write, report: &Report, problems: &[String], advice: Option<&str>) -> Result<()> {

@@ -7,8 +7,8 @@ use ulid::Ulid;
 
 use tankwalk::core::band::{Band, BandEdges};
 use tankwalk::core::sample::{self, Derived};
-use tankwalk::model::Facility;
 use tankwalk::model::record::{DeviceId, EventKind, Measurements, Reading, Record, RecordBody};
+use tankwalk::model::{Facility, TemperatureUnit};
 use tankwalk::numfmt::sig;
 use tankwalk::rules::latent::Latent;
 use tankwalk::rules::trend::Trend;
@@ -65,6 +65,10 @@ pub struct EntryJson {
     pub deaths: Option<u32>,
     pub event: Option<EventKind>,
     pub note: Option<String>,
+    /// Versions of this record that arrived from another laptop with the same id
+    /// but other content (kept aside, never applied; see `tankwalk doctor`).
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub conflicts: Vec<Record>,
     /// The assessment, when the room is known: latent band, trend, biofilter, actions.
     #[serde(flatten, skip_serializing_if = "Option::is_none")]
     pub advice: Option<Advice>,
@@ -171,6 +175,7 @@ pub fn entry_json(entry: &Entry, room: Option<&Facility>, assessment: Option<&As
         deaths: reading.map(|r| r.observations.deaths),
         event: body.as_event().map(|e| e.kind.clone()),
         note: body.note().map(str::to_string),
+        conflicts: Vec::new(),
         advice: assessment.map(Advice::of),
         measurements: m.cloned(),
         trail: if entry.is_corrected() { entry.trail().cloned().collect() } else { Vec::new() },
@@ -226,42 +231,9 @@ pub fn describe_reading(reading: &Reading, assessment: Option<&Assessment>) -> S
     parts.join("  ")
 }
 
-/// A number with at most `decimals` decimals and no trailing zeros: `30`, `12.5`.
-fn plain(x: f64, decimals: usize) -> String {
-    let s = format!("{x:.decimals$}");
-    if s.contains('.') { s.trim_end_matches('0').trim_end_matches('.').to_string() } else { s }
-}
-
-/// What an event says, in words.
+/// What an event says, in words (temperatures in °C: the log has no room units).
 pub fn describe_event(kind: &EventKind) -> String {
-    match kind {
-        EventKind::WaterChange { percent, source_ph, source_tan_n_mg_l, source_temp_c, dechlorinated } => {
-            let mut source = Vec::new();
-            if let Some(ph) = source_ph {
-                source.push(format!("pH {ph:.2}"));
-            }
-            if let Some(tan) = source_tan_n_mg_l {
-                source.push(format!("TAN-N {}", sig(*tan, 3)));
-            }
-            if let Some(t) = source_temp_c {
-                source.push(format!("{t:.1} °C"));
-            }
-            source.push(if *dechlorinated { "dechlorinated".into() } else { "NOT dechlorinated".into() });
-            format!("water change {} % (source {})", plain(*percent, 1), source.join(", "))
-        }
-        EventKind::Medication { class, name } => format!("medication: {name} ({})", class.name()),
-        EventKind::FilterCleaned { rinsed_in_tap_water } => {
-            format!(
-                "filter cleaned ({})",
-                if *rinsed_in_tap_water { "rinsed in tap water" } else { "not in tap water" }
-            )
-        }
-        EventKind::FishAdded { count } => format!("{count} fish added"),
-        EventKind::DeadFishRemoved { count } => format!("{count} dead fish removed"),
-        EventKind::SaltAdded { grams } => format!("{} g salt added", plain(*grams, 1)),
-        EventKind::HeaterSetPoint { temp_c } => format!("heater set to {temp_c:.1} °C"),
-        other => other.name().replace('-', " "),
-    }
+    tankwalk::report::words::event(kind, TemperatureUnit::Celsius)
 }
 
 /// What a record body says, in words.
@@ -319,14 +291,12 @@ mod tests {
             source_temp_c: Some(24.0),
             dechlorinated: false,
         };
-        assert_eq!(describe_event(&wc), "water change 30 % (source pH 7.40, 24.0 °C, NOT dechlorinated)");
+        assert_eq!(describe_event(&wc), "water change 30 % (new water pH 7.4, 24 °C, not dechlorinated)");
         assert_eq!(
             describe_event(&EventKind::Medication { class: MedicationClass::Antibiotic, name: "kanamycin".into() }),
             "medication: kanamycin (antibiotic)"
         );
         assert_eq!(describe_event(&EventKind::SaltAdded { grams: 12.5 }), "12.5 g salt added");
         assert_eq!(describe_event(&EventKind::NitrifyingCultureAdded), "nitrifying culture added");
-        assert_eq!(plain(100.0, 1), "100");
-        assert_eq!(plain(0.26, 1), "0.3");
     }
 }

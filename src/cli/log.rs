@@ -74,6 +74,12 @@ pub fn run(global: &GlobalArgs, args: &LogArgs) -> Result<ExitCode> {
     let range = TimeRange::new(since.map(input::utc), until.map(input::utc));
 
     let store = super::open_store(global)?;
+    // Versions from other laptops that disagree with a stored record, by id.
+    let mut conflicts: std::collections::HashMap<ulid::Ulid, Vec<tankwalk::model::record::Record>> =
+        std::collections::HashMap::new();
+    for record in tankwalk::exchange::conflicts::list(&global.data_dir()?)? {
+        conflicts.entry(record.id).or_default().push(record);
+    }
     let mut entries: Vec<Entry> = history::entries(&store, &targets, &range)?;
 
     entries.retain(|e| args.withdrawn || !e.is_withdrawn());
@@ -111,8 +117,15 @@ pub fn run(global: &GlobalArgs, args: &LogArgs) -> Result<ExitCode> {
 
     let mut out = std::io::stdout().lock();
     if args.json {
-        let views: Vec<EntryJson> =
-            entries.iter().zip(&assessments).map(|(e, a)| entry_view::entry_json(e, facility, a.as_ref())).collect();
+        let views: Vec<EntryJson> = entries
+            .iter()
+            .zip(&assessments)
+            .map(|(e, a)| {
+                let mut view = entry_view::entry_json(e, facility, a.as_ref());
+                view.conflicts = e.trail().filter_map(|r| conflicts.get(&r.id)).flatten().cloned().collect();
+                view
+            })
+            .collect();
         serde_json::to_writer_pretty(&mut out, &views)?;
         writeln!(out)?;
         return Ok(ExitCode::SUCCESS);
@@ -146,6 +159,15 @@ pub fn run(global: &GlobalArgs, args: &LogArgs) -> Result<ExitCode> {
         }
         for line in entry_view::trail_lines(entry) {
             writeln!(out, "{line}")?;
+        }
+        for other in entry.trail().filter_map(|r| conflicts.get(&r.id)).flatten() {
+            writeln!(
+                out,
+                "    conflict: another laptop's version of {} by {} says: {} (kept aside; see tankwalk doctor)",
+                other.id,
+                other.operator,
+                entry_view::describe(&other.body, None)
+            )?;
         }
     }
     if entries.iter().any(Entry::is_corrected) {

@@ -23,7 +23,7 @@ pub fn resolve_room(global: &GlobalArgs) -> Result<(PathBuf, Facility)> {
         Some(given) => {
             let path = std::path::absolute(given).map_err(|e| bad_input!("room file {}: {e}", given.display()))?;
             let facility = load(&path, None)?;
-            if let Err(err) = remember(global, &path) {
+            if let Err(err) = remember(global, LAST_ROOM_FILE, &path) {
                 // The command can still run; only the memory of the room is lost.
                 eprintln!("tankwalk: warning: could not remember the room for next time: {err:#}");
             }
@@ -31,21 +31,12 @@ pub fn resolve_room(global: &GlobalArgs) -> Result<(PathBuf, Facility)> {
         }
         None => {
             let memo = global.data_dir()?.join(LAST_ROOM_FILE);
-            let bytes = match std::fs::read(&memo) {
-                Ok(bytes) => bytes,
-                Err(e) if e.kind() == std::io::ErrorKind::NotFound => {
-                    return Err(bad_input!(
-                        "no room given: pass --room FILE (or set TANKWALK_ROOM) once, and tankwalk remembers it; \
-                         sample rooms are in sample-rooms/"
-                    ));
-                }
-                Err(e) => return Err(bad_input!("cannot read {}: {e}", memo.display())),
+            let Some(path) = recall(global, LAST_ROOM_FILE)? else {
+                return Err(bad_input!(
+                    "no room given: pass --room FILE (or set TANKWALK_ROOM) once, and tankwalk remembers it; \
+                     sample rooms are in sample-rooms/"
+                ));
             };
-            let end = bytes.iter().rposition(|b| !matches!(b, b'\n' | b'\r')).map_or(0, |i| i + 1);
-            let path = path_from_bytes(&bytes[..end]);
-            if path.as_os_str().is_empty() {
-                return Err(bad_input!("{} is empty: pass --room FILE", memo.display()));
-            }
             let facility = load(&path, Some(&memo))?;
             Ok((path, facility))
         }
@@ -89,12 +80,33 @@ fn load(path: &Path, remembered_in: Option<&Path>) -> Result<Facility> {
     }
 }
 
-/// Writes the room's absolute path to the data folder (replacing the file whole).
-fn remember(global: &GlobalArgs, path: &Path) -> Result<()> {
+/// The path remembered in the data folder's file `name`, if any.
+pub fn recall(global: &GlobalArgs, name: &str) -> Result<Option<PathBuf>> {
+    recall_in(&global.data_dir()?, name)
+}
+
+/// The path remembered in the file `name` of the data folder `dir`, if any.
+pub fn recall_in(dir: &Path, name: &str) -> Result<Option<PathBuf>> {
+    let memo = dir.join(name);
+    let bytes = match std::fs::read(&memo) {
+        Ok(bytes) => bytes,
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(None),
+        Err(e) => return Err(bad_input!("cannot read {}: {e}", memo.display())),
+    };
+    let end = bytes.iter().rposition(|b| !matches!(b, b'\n' | b'\r')).map_or(0, |i| i + 1);
+    let path = path_from_bytes(&bytes[..end]);
+    if path.as_os_str().is_empty() {
+        return Err(bad_input!("{} is empty: give the path again", memo.display()));
+    }
+    Ok(Some(path))
+}
+
+/// Writes an absolute path to the data folder's file `name` (replacing the file whole).
+pub fn remember(global: &GlobalArgs, name: &str, path: &Path) -> Result<()> {
     let dir = global.data_dir()?;
     std::fs::create_dir_all(&dir).with_context(|| format!("cannot create data folder {}", dir.display()))?;
-    let memo = dir.join(LAST_ROOM_FILE);
-    let partial = dir.join(format!("{LAST_ROOM_FILE}.partial"));
+    let memo = dir.join(name);
+    let partial = dir.join(format!("{name}.partial"));
     let mut bytes = path_to_bytes(path);
     bytes.push(b'\n');
     std::fs::write(&partial, bytes).with_context(|| format!("cannot write {}", partial.display()))?;

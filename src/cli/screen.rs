@@ -5,13 +5,13 @@
 //! Everything that can be refused (no terminal, no room, a bad keymap, the
 //! data folder in use) is checked before the screen starts.
 
-use std::io::Write as _;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use anyhow::Context as _;
 use chrono::{DateTime, FixedOffset};
 use clap::{Args, ValueEnum};
+use tankwalk::exchange::{self, ExportOptions, Formats};
 use tankwalk::model::facility::Facility;
 use tankwalk::model::record::Record;
 use tankwalk::store::{SledStore, Store};
@@ -78,10 +78,13 @@ fn operator() -> String {
 }
 
 /// Saves go to the store (durable when `append` returns); exports go to the
-/// data folder's `exports/`.
+/// data folder's `exports/`, round reports to its `reports/`.
 struct StoreRecords {
     store: SledStore,
+    facility: Facility,
     exports: PathBuf,
+    reports: PathBuf,
+    data_dir: PathBuf,
     saved: usize,
     saves: usize,
     /// Fault injection for the tests: panic at this save (see [`PANIC_ON_SAVE`]).
@@ -103,36 +106,42 @@ impl Records for StoreRecords {
     }
 
     fn export(&mut self) -> Result<String, String> {
-        export_json_lines(&self.store, &self.exports).map_err(|e| format!("{e:#}"))
+        export_folder(&self.store, &self.exports, &self.facility).map_err(|e| format!("{e:#}"))
+    }
+
+    fn report(&mut self) -> Result<String, String> {
+        super::report::write_round_report(&self.store, &self.facility, &self.reports, now())
+            .map_err(|e| format!("{e:#}"))
+    }
+
+    fn sync(&mut self) -> Result<(String, Vec<Record>), String> {
+        let folder = super::room::recall_in(&self.data_dir, super::sync::SYNC_FOLDER_FILE)
+            .map_err(|e| format!("{e:#}"))?
+            .ok_or("no shared folder yet: run `tankwalk sync DIR` once in a terminal, and tankwalk remembers it")?;
+        let summary =
+            exchange::sync(&mut self.store, &folder, &mut exchange::no_progress).map_err(|e| e.to_string())?;
+        let records = run::records_to_show(&self.store, now()).map_err(|e| format!("{e:#}"))?;
+        let sent = summary.sent.as_ref().map_or(0, |s| s.records);
+        let mut said = format!("sent {sent}, received {} new", summary.added());
+        if summary.conflicts() > 0 {
+            said.push_str(&format!(", {} in conflict (see `tankwalk doctor`)", summary.conflicts()));
+        }
+        if !summary.left.is_empty() {
+            said.push_str(&format!(", {} segment(s) left for the next sync", summary.left.len()));
+        }
+        Ok((said, records))
     }
 }
 
-/// Writes every record, one JSON object a line (the journal's record form),
-/// to a new file in `dir`: written to a temporary file, synced, then renamed.
-///
-/// SEAM: the flat-file export (JSON Lines with a header, CSV, manifest) is
-/// its own piece of work; when it lands this calls it instead.
-fn export_json_lines(store: &SledStore, dir: &Path) -> anyhow::Result<String> {
-    std::fs::create_dir_all(dir).with_context(|| format!("creating {}", dir.display()))?;
-    let name = format!("records-{}.jsonl", now().format("%Y%m%d-%H%M%S"));
-    let path = dir.join(&name);
-    let partial = dir.join(format!(".{name}.partial"));
-    let mut file = std::io::BufWriter::new(
-        std::fs::File::create(&partial).with_context(|| format!("creating {}", partial.display()))?,
-    );
-    let mut count = 0usize;
-    for record in store.all()? {
-        serde_json::to_writer(&mut file, &record?)?;
-        file.write_all(b"\n")?;
-        count += 1;
-    }
-    let file = file.into_inner().map_err(|e| e.into_error())?;
-    file.sync_all()?;
-    std::fs::rename(&partial, &path)?;
-    if let Ok(folder) = std::fs::File::open(dir) {
-        let _ = folder.sync_all();
-    }
-    Ok(format!("{} ({count} records)", path.display()))
+/// Exports every record with [`tankwalk::exchange::export`] (the same code as
+/// `tankwalk export`) to a new folder in `dir` named by the time:
+/// `records.jsonl`, `readings.csv` with the room's species edges, `manifest.json`.
+fn export_folder(store: &SledStore, dir: &Path, facility: &Facility) -> anyhow::Result<String> {
+    let folder = dir.join(now().format("%Y%m%d-%H%M%S").to_string());
+    let options = ExportOptions { formats: Formats::Both, since: None, room: Some(facility), room_file: None };
+    let summary = exchange::export(store, &folder, &options, &mut exchange::no_progress)
+        .with_context(|| format!("exporting to {}", folder.display()))?;
+    Ok(format!("{} ({} records, {} reading rows)", folder.display(), summary.records, summary.rows))
 }
 
 fn run_screen(
@@ -144,10 +153,20 @@ fn run_screen(
     let started = now();
     let records = run::records_to_show(&store, started)?;
     let session = SessionInfo { operator: operator(), device: store.device(), id_seed: Ulid::generate().random() };
+    let exported_room = facility.clone();
     let mut app = App::new(facility, records, session, started);
     app.colour = terminal::colour_wanted();
     let panic_on_save = std::env::var(PANIC_ON_SAVE).ok().and_then(|n| n.trim().parse().ok());
-    let mut records = StoreRecords { store, exports: data_dir.join("exports"), saved: 0, saves: 0, panic_on_save };
+    let mut records = StoreRecords {
+        store,
+        facility: exported_room,
+        exports: data_dir.join("exports"),
+        reports: data_dir.join("reports"),
+        data_dir: data_dir.to_path_buf(),
+        saved: 0,
+        saves: 0,
+        panic_on_save,
+    };
     run::run(&mut app, keymap, &mut records, &now)?;
     Ok(records.saved)
 }

@@ -290,6 +290,16 @@ pub fn assess(inputs: &Inputs<'_>) -> Assessment {
     let config = inputs.config;
     let profile = facility.effective_profile(tank);
     let edges = profile.band_edges;
+    // What is done to the water (heater, salt) reaches every tank on a shared
+    // system, so those steps must suit every species on it, not only this tank's.
+    let water_profile = match facility.system_of(tank) {
+        Some(system) => {
+            let tanks = facility.tanks_on(system);
+            let species: Vec<_> = tanks.iter().flat_map(|t| facility.species_of(t)).collect();
+            EffectiveProfile::combine(&species)
+        }
+        None => profile.clone(),
+    };
     let water_type = facility.water_type(tank);
     let configured_salinity = facility.salinity_g_l(tank);
     let volume_l = facility.water_volume_l(tank);
@@ -372,6 +382,7 @@ pub fn assess(inputs: &Inputs<'_>) -> Assessment {
         config,
         units,
         profile: &profile,
+        water_profile: &water_profile,
         edges,
         water_type,
         volume_l,
@@ -416,6 +427,9 @@ struct Plan<'a> {
     config: &'a RulesConfig,
     units: Units,
     profile: &'a EffectiveProfile,
+    /// The combined needs of everything on the tank's water (its system's
+    /// tanks when it shares water): heater and salt steps must suit them all.
+    water_profile: &'a EffectiveProfile,
     edges: BandEdges,
     water_type: WaterType,
     volume_l: f64,
@@ -680,11 +694,13 @@ impl Plan<'_> {
     }
 
     fn cooling(&mut self, sample: &WaterSample, nh3: f64) {
-        let Some(range) = self.profile.temp_c else { return };
-        if sample.temp_c - range.min < 0.5 || sample.temp_c > range.max + 0.5 {
+        let Some(range) = self.water_profile.temp_c else { return };
+        // Down by at most 2 °C, never below the lowest temperature every species
+        // on the water takes (from above the range, lowering helps twice over).
+        let target = (sample.temp_c - self.config.max_cooling_c).max(range.min);
+        if sample.temp_c - target < 0.5 {
             return;
         }
-        let target = (sample.temp_c - self.config.max_cooling_c).max(range.min);
         let after = nh3_n_at(sample, target, sample.salinity_ppt);
         let (value, unit) = self.units.temp_value(target);
         self.actions.push(Action::amount(
@@ -692,8 +708,8 @@ impl Plan<'_> {
             value,
             unit,
             format!(
-                "lower the heater from {} to {} (the species' range starts at {}): NH3 {} → {} ({}), a mild cut that \
-                 does not remove ammonia",
+                "lower the heater from {} to {} (the range of every species on this water starts at {}): NH3 {} → \
+                 {} ({}), a mild cut that does not remove ammonia",
                 self.units.temp(sample.temp_c),
                 self.units.temp(target),
                 self.units.temp(range.min),
@@ -714,7 +730,7 @@ impl Plan<'_> {
             }
             return;
         }
-        let tolerance = self.profile.salt_tolerance_g_l.unwrap_or(0.0);
+        let tolerance = self.water_profile.salt_tolerance_g_l.unwrap_or(0.0);
         let zeolite_in_filter = had_event(self.inputs, Duration::days(30), |k| matches!(k, EventKind::ZeoliteAdded));
         let target = tolerance.min(self.config.max_salt_g_l);
         // Salt for species that tolerate at least 1 g/L; otherwise zeolite. Never
@@ -736,8 +752,8 @@ impl Plan<'_> {
                         grams,
                         "g",
                         format!(
-                            "the species tolerate {} g/L: dissolve {} of non-iodised salt for {} to go from {} to {} \
-                             g/L: NH3 {} → {} ({}), mild, and it eases nitrite and osmotic stress; not with zeolite",
+                            "every species on this water tolerates {} g/L: dissolve {} of non-iodised salt for {} to go \
+                             from {} to {} g/L: NH3 {} → {} ({}), mild, and it eases nitrite and osmotic stress; not with zeolite",
                             sig(tolerance, 2),
                             mass_text(grams),
                             self.volume_name(),
@@ -755,7 +771,8 @@ impl Plan<'_> {
             self.actions.push(Action::plain(
                 ActionKind::Zeolite,
                 "put zeolite (clinoptilolite) in a mesh bag in the filter flow: it binds ammonium in fresh water; \
-                 replace it when saturated, and never add salt while it is in",
+                 replace it when saturated, and no salt treatment (grams per litre) while it is in: salt pushes \
+                 the ammonia back out",
             ));
         }
     }
@@ -833,7 +850,7 @@ impl Plan<'_> {
         }
         let grams = practical(NACL_PER_CL * (needed - have) * self.volume_l / 1000.0);
         let added_g_l = NACL_PER_CL * (needed - have) / 1000.0;
-        let tolerance = self.profile.salt_tolerance_g_l.unwrap_or(0.0);
+        let tolerance = self.water_profile.salt_tolerance_g_l.unwrap_or(0.0);
         if added_g_l > 1.0 && added_g_l > tolerance {
             self.warn(
                 WarningKind::SaltBeyondTolerance,
@@ -853,11 +870,13 @@ impl Plan<'_> {
                 "g",
                 format!(
                     "nitrite {} mg/L NO2-N ({} mg/L NO2-): keep chloride at least {}× nitrite (SRAC 462) — dissolve {} \
-                     of plain salt (NaCl) for {} to raise chloride from {} to {} mg/L{assumed}",
+                     of plain salt (NaCl, {} g/L: far below a salt treatment) for {} to raise chloride from {} to {} \
+                     mg/L{assumed}",
                     sig(nitrite_n, 2),
                     sig(nitrite_ion, 2),
                     self.config.chloride_to_nitrite,
                     mass_text(grams),
+                    sig(added_g_l, 1),
                     self.volume_name(),
                     sig(have, 2),
                     sig(needed, 2)

@@ -33,24 +33,62 @@ pub const VERSION: u32 = 1;
 /// The first line of a journal (or of any file in the same format).
 ///
 /// Readers ignore header fields they do not know, so later versions may add
-/// some (a time range, a segment number) without breaking older readers;
-/// record lines, in contrast, refuse unknown fields.
+/// some without breaking older readers; record lines, in contrast, refuse
+/// unknown fields. The optional fields are absent from the journal's own
+/// header; exports and sync segments (see [`crate::exchange`]) fill some.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
 pub struct Header {
     /// Always [`FORMAT`].
     pub format: String,
     /// The format version, [`VERSION`].
     pub version: u32,
-    /// The device whose records the file holds (the journal's own device).
+    /// The device that wrote the file (the journal's own device).
     pub device: DeviceId,
     /// When the file was started.
     pub created_at: DateTime<Utc>,
+    /// An export: it holds the records taken at or after this instant (all when absent).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub since: Option<DateTime<Utc>>,
+    /// An export: the instant the store was read; the records it held then are in the file.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub until: Option<DateTime<Utc>>,
+    /// A sync segment: its number among the writing device's segments, from 1.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub segment: Option<u64>,
+    /// A sync segment: where in the writer's journal its lines start (byte offset).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub journal_from: Option<u64>,
+    /// A sync segment: where in the writer's journal its lines end (byte offset).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub journal_to: Option<u64>,
+    /// How many record lines follow the header.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub records: Option<u64>,
+    /// How many bytes follow the header line.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub body_bytes: Option<u64>,
+    /// SHA-256 of the bytes that follow the header line, lowercase hex.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub body_sha256: Option<String>,
 }
 
 impl Header {
     /// A header for `device`, started now.
     pub fn new(device: DeviceId) -> Header {
-        Header { format: FORMAT.into(), version: VERSION, device, created_at: Utc::now() }
+        Header {
+            format: FORMAT.into(),
+            version: VERSION,
+            device,
+            created_at: Utc::now(),
+            since: None,
+            until: None,
+            segment: None,
+            journal_from: None,
+            journal_to: None,
+            records: None,
+            body_bytes: None,
+            body_sha256: None,
+        }
     }
 
     /// The header as a line, with its newline.
@@ -63,7 +101,8 @@ impl Header {
 
     /// Reads a header line (without its newline).
     pub fn parse(line: &[u8]) -> Result<Header, String> {
-        let header: Header = serde_json::from_slice(line).map_err(|e| format!("not a header line: {e}"))?;
+        let header: Header =
+            serde_json::from_slice(line).map_err(|e| format!("not a header line: {}", json_message(&e, line)))?;
         if header.format != FORMAT {
             return Err(format!("format '{}' is not '{FORMAT}'", header.format));
         }
@@ -84,9 +123,121 @@ pub fn record_line(stored: &[u8]) -> Vec<u8> {
 
 /// Reads one record line (without its newline) and checks the record.
 pub fn parse_record(line: &[u8]) -> Result<Record, String> {
-    let record: Record = serde_json::from_slice(line).map_err(|e| e.to_string())?;
+    let record: Record = serde_json::from_slice(line).map_err(|e| json_message(&e, line))?;
     record.check().map_err(|e| format!("record {}: {e}", record.id))?;
     Ok(record)
+}
+
+/// What a JSON error on a one-line document says, without serde's "at line 1
+/// column N", naming the field it is about when that can be told: the one
+/// field holding the value the error quotes (`integer \`-1\``), or a
+/// record's own field (`taken_at`) just before the column. Values inside a
+/// record's body are read as a whole first, so there the column is the end
+/// of the body, and only the quoted value can name the field.
+pub fn json_message(e: &serde_json::Error, line: &[u8]) -> String {
+    let text = e.to_string();
+    let what = match text.rfind(" at line ") {
+        Some(at) => &text[..at],
+        None => text.as_str(),
+    };
+    match e.classify() {
+        serde_json::error::Category::Data => {
+            if let Ok(value) = serde_json::from_slice::<serde_json::Value>(line)
+                && !value.is_object()
+            {
+                return format!("expected a record (a JSON object), found {}", kind_of(&value));
+            }
+            // "missing field `x`" and "unknown field `x`" say which already; their column is the object's end.
+            let names_itself = what.starts_with("missing field") || what.contains("field `");
+            let field = field_holding(what, line).filter(|_| !names_itself).or_else(|| {
+                field_before(line, e.column())
+                    .filter(|f| !names_itself && ["id", "device", "operator", "taken_at"].contains(&f.as_str()))
+            });
+            match field {
+                Some(field) => format!("field \"{field}\": {what}"),
+                // No field can be told (the line is not valid JSON further on): the column at least.
+                None if !names_itself && e.column() > 0 => format!("{what} (column {})", e.column()),
+                None => what.to_string(),
+            }
+        }
+        _ if e.column() > 0 => format!("{what} (column {})", e.column()),
+        _ => what.to_string(),
+    }
+}
+
+fn kind_of(value: &serde_json::Value) -> &'static str {
+    match value {
+        serde_json::Value::Null => "null",
+        serde_json::Value::Bool(_) => "a boolean",
+        serde_json::Value::Number(_) => "a number",
+        serde_json::Value::String(_) => "a string",
+        serde_json::Value::Array(_) => "an array",
+        serde_json::Value::Object(_) => "an object",
+    }
+}
+
+/// The dotted path of the only field of `line` whose value is the one an
+/// error message quotes (`integer \`-1\``, `string "x"`, `unknown variant \`x\``).
+fn field_holding(message: &str, line: &[u8]) -> Option<String> {
+    use serde_json::Value;
+    let quoted = |prefix: &str, open: char, close: char| -> Option<String> {
+        let rest = &message[message.find(prefix)? + prefix.len()..];
+        let rest = rest.strip_prefix(open)?;
+        Some(rest[..rest.find(close)?].to_string())
+    };
+    let wanted: Box<dyn Fn(&Value) -> bool> = if let Some(v) = quoted("integer ", '`', '`') {
+        let n: i128 = v.parse().ok()?;
+        Box::new(move |x| x.as_i64().map(i128::from).or(x.as_u64().map(i128::from)) == Some(n))
+    } else if let Some(v) = quoted("floating point ", '`', '`') {
+        let f: f64 = v.parse().ok()?;
+        Box::new(move |x| x.is_f64() && x.as_f64() == Some(f))
+    } else if let Some(v) = quoted("string ", '"', '"').or_else(|| quoted("unknown variant ", '`', '`')) {
+        Box::new(move |x| x.as_str() == Some(v.as_str()))
+    } else if let Some(v) = quoted("boolean ", '`', '`') {
+        let b: bool = v.parse().ok()?;
+        Box::new(move |x| x.as_bool() == Some(b))
+    } else {
+        return None;
+    };
+    let value: Value = serde_json::from_slice(line).ok()?;
+    let mut found = Vec::new();
+    let mut stack = vec![(String::new(), &value)];
+    while let Some((path, v)) = stack.pop() {
+        match v {
+            Value::Object(map) => {
+                for (key, child) in map {
+                    stack.push((if path.is_empty() { key.clone() } else { format!("{path}.{key}") }, child));
+                }
+            }
+            Value::Array(items) => {
+                for (i, child) in items.iter().enumerate() {
+                    stack.push((format!("{path}[{i}]"), child));
+                }
+            }
+            leaf if wanted(leaf) => found.push(path),
+            _ => {}
+        }
+    }
+    (found.len() == 1).then(|| found.remove(0))
+}
+
+/// The name of the last `"name":` that starts before byte column `column` (1-based).
+fn field_before(line: &[u8], column: usize) -> Option<String> {
+    let upto = &line[..column.min(line.len())];
+    let mut end = upto.len();
+    while let Some(colon) = upto[..end].iter().rposition(|&b| b == b':') {
+        let before = upto[..colon].trim_ascii_end();
+        if let Some(inner) = before.strip_suffix(b"\"")
+            && let Some(open) = inner.iter().rposition(|&b| b == b'"')
+        {
+            let name = &inner[open + 1..];
+            if !name.is_empty() && name.iter().all(|b| b.is_ascii_alphanumeric() || *b == b'_') {
+                return String::from_utf8(name.to_vec()).ok();
+            }
+        }
+        end = colon;
+    }
+    None
 }
 
 /// A record line found by [`scan`].
@@ -147,6 +298,113 @@ impl Scan {
     }
 }
 
+/// Longest line a reader takes in: far more than any record needs (a record
+/// with every text at its longest is under 100 KiB), so that a file of
+/// garbage cannot make a reader hold gigabytes.
+pub const MAX_LINE_BYTES: usize = 1 << 20;
+
+/// One line as read from a file in this format, by [`LineReader`].
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct RawLine {
+    /// 1-based line number.
+    pub number: u64,
+    /// Byte offset where the line starts.
+    pub start: u64,
+    /// Byte offset just after it (after its newline, when it has one).
+    pub end: u64,
+    /// The line's bytes with its `\n` or `\r\n` (empty when [`RawLine::too_long`]).
+    pub raw: Vec<u8>,
+    /// True when the line ends with a newline; false for an unfinished last line.
+    pub terminated: bool,
+    /// True when the line is longer than [`MAX_LINE_BYTES`]; its bytes were skipped.
+    pub too_long: bool,
+}
+
+impl RawLine {
+    /// The line without its newline (and a `\r` before it).
+    pub fn content(&self) -> &[u8] {
+        let mut bytes = self.raw.as_slice();
+        if self.terminated {
+            bytes = bytes.strip_suffix(b"\n").unwrap_or(bytes);
+            bytes = bytes.strip_suffix(b"\r").unwrap_or(bytes);
+        }
+        bytes
+    }
+
+    /// The length of the line in bytes, newline included.
+    pub fn len(&self) -> u64 {
+        self.end - self.start
+    }
+
+    /// True for a line of no bytes at all (never returned by [`LineReader`]).
+    pub fn is_empty(&self) -> bool {
+        self.end == self.start
+    }
+}
+
+/// Reads a file in this format line by line, keeping at most
+/// [`MAX_LINE_BYTES`] of any line in memory.
+#[derive(Debug)]
+pub struct LineReader<R> {
+    reader: R,
+    offset: u64,
+    number: u64,
+}
+
+impl<R: BufRead> LineReader<R> {
+    /// Reads from `reader`, whose first line starts at byte `offset` and has number `number`.
+    pub fn new(reader: R, offset: u64, number: u64) -> LineReader<R> {
+        LineReader { reader, offset, number }
+    }
+
+    /// The byte offset of the next line.
+    pub fn offset(&self) -> u64 {
+        self.offset
+    }
+
+    /// The next line, or `None` at the end of the file.
+    pub fn next_line(&mut self) -> io::Result<Option<RawLine>> {
+        let start = self.offset;
+        let mut raw = Vec::new();
+        let mut too_long = false;
+        let mut terminated = false;
+        loop {
+            let available = match self.reader.fill_buf() {
+                Ok(buf) => buf,
+                Err(e) if e.kind() == io::ErrorKind::Interrupted => continue,
+                Err(e) => return Err(e),
+            };
+            if available.is_empty() {
+                break;
+            }
+            let (take, found) = match available.iter().position(|&b| b == b'\n') {
+                Some(i) => (i + 1, true),
+                None => (available.len(), false),
+            };
+            if !too_long {
+                if raw.len() + take > MAX_LINE_BYTES + 2 {
+                    too_long = true;
+                    raw = Vec::new();
+                } else {
+                    raw.extend_from_slice(&available[..take]);
+                }
+            }
+            self.reader.consume(take);
+            self.offset += take as u64;
+            if found {
+                terminated = true;
+                break;
+            }
+        }
+        if self.offset == start {
+            return Ok(None);
+        }
+        let line = RawLine { number: self.number, start, end: self.offset, raw, terminated, too_long };
+        self.number += 1;
+        Ok(Some(line))
+    }
+}
+
 /// Reads the journal at `path` from byte `from` (0 for the whole file, which
 /// then reads the header too), line by line. `first_line` is the number of
 /// the line starting at `from`. A missing file scans as empty.
@@ -161,40 +419,39 @@ pub fn scan(path: &Path, from: u64, first_line: u64) -> Result<Scan, StoreError>
     scan.len = file.metadata().map_err(read_err)?.len();
     let mut reader = BufReader::with_capacity(1 << 16, file);
     reader.seek(SeekFrom::Start(from)).map_err(read_err)?;
-    let mut offset = from;
-    let mut number = first_line;
-    let mut buf = Vec::new();
-    loop {
-        buf.clear();
-        let n = reader.read_until(b'\n', &mut buf).map_err(read_err)? as u64;
-        if n == 0 {
+    let mut lines = LineReader::new(reader, from, first_line);
+    while let Some(line) = lines.next_line().map_err(read_err)? {
+        if !line.terminated {
+            scan.unfinished_from = Some(line.start);
             break;
         }
-        let start = offset;
-        offset += n;
-        if buf.last() != Some(&b'\n') {
-            scan.unfinished_from = Some(start);
-            break;
-        }
-        buf.pop();
-        if buf.last() == Some(&b'\r') {
-            buf.pop();
-        }
-        if from == 0 && number == 1 {
-            scan.header = Some(Header::parse(&buf));
-            scan.header_end = offset;
+        let (number, start) = (line.number, line.start);
+        if line.too_long {
+            scan.bad_lines.push(BadLine { number, start, message: too_long_message(line.len()) });
+        } else if from == 0 && number == 1 {
+            scan.header = Some(Header::parse(line.content()));
+            scan.header_end = line.end;
         } else {
-            match parse_record(&buf) {
-                Ok(record) => scan.records.push(Line { number, start, end: offset, bytes: buf.clone(), record }),
+            match parse_record(line.content()) {
+                Ok(record) => {
+                    scan.records.push(Line { number, start, end: line.end, bytes: line.content().to_vec(), record })
+                }
                 Err(message) => scan.bad_lines.push(BadLine { number, start, message }),
             }
         }
-        number += 1;
     }
     if from == 0 && scan.header.is_none() && scan.unfinished_from.is_some() {
         scan.header = Some(Err("the header line is unfinished".into()));
     }
     Ok(scan)
+}
+
+/// What is wrong with a line longer than [`MAX_LINE_BYTES`].
+pub fn too_long_message(len: u64) -> String {
+    format!(
+        "the line is {len} bytes long, more than any record can be (at most {} bytes): not a record",
+        MAX_LINE_BYTES
+    )
 }
 
 /// What the first line of a journal is.

@@ -86,6 +86,8 @@ actions! {
     ResetWhatIf => "reset-whatif", "reset", "Put every value back to the reading's";
     // Round summary.
     Export => "export", "export", "Export the records (JSON Lines and CSV)";
+    Sync => "sync", "sync", "Sync with the other laptops through the shared folder";
+    WriteReport => "write-report", "report", "Write the round report (HTML) for the lead or a vet";
     // Prompts and questions.
     Confirm => "confirm", "yes", "Yes / accept";
     Cancel => "cancel", "no", "No / cancel";

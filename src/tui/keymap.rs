@@ -440,7 +440,7 @@ contexts! {
     Global => "global", "Everywhere", TextInput::None, false, [ToggleHelp, Quit, Back];
     Board => "board", "Room board", TextInput::None, true,
         [SelectNext, SelectPrevious, SelectFirst, SelectLast, PageDown, PageUp, StartWalk, OpenTank, FilterText,
-         FilterBand, ShowSummary, OpenWhatIf];
+         FilterBand, ShowSummary, OpenWhatIf, Sync];
     Walk => "walk", "Walk: entering readings", TextInput::Number, true,
         [NextField, PreviousField, KeepPrevious, Erase, ClearField, SaveAndNext, SkipTank, NextTank, PreviousTank,
          ToggleGasping, ToggleHyperactive, ToggleNervous, ToggleCloudyEyes, ToggleMucus, SetDeaths, EditNote,
@@ -451,7 +451,7 @@ contexts! {
     WhatIf => "whatif", "What-if panel", TextInput::Number, true,
         [NextField, PreviousField, Increase, Decrease, Erase, ClearField, ResetWhatIf];
     Summary => "summary", "Round summary", TextInput::None, true,
-        [SelectNext, SelectPrevious, SelectFirst, SelectLast, PageDown, PageUp, OpenTank, StartWalk, Export];
+        [SelectNext, SelectPrevious, SelectFirst, SelectLast, PageDown, PageUp, OpenTank, StartWalk, Export, WriteReport];
     Pick => "pick", "Choosing from a list", TextInput::None, false,
         [SelectNext, SelectPrevious, SelectFirst, SelectLast, Confirm, Cancel];
     Prompt => "prompt", "Typing a text or number", TextInput::Free, false, [Confirm, Cancel, Erase, ClearField];

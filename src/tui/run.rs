@@ -47,6 +47,15 @@ pub trait Records {
     fn save(&mut self, records: &[Record]) -> Result<(), String>;
     /// Exports every record; returns where the files went.
     fn export(&mut self) -> Result<String, String>;
+    /// Writes the report of the round under way; returns where it went.
+    fn report(&mut self) -> Result<String, String> {
+        Err("reports are not written from here".to_string())
+    }
+    /// Syncs with the shared folder; returns what happened and the records
+    /// the screen should now show.
+    fn sync(&mut self) -> Result<(String, Vec<Record>), String> {
+        Err("there is no shared folder here".to_string())
+    }
 }
 
 /// Where the loop's events come from: the terminal, or a script in tests.
@@ -116,6 +125,8 @@ pub fn run_loop<B: Backend>(
                 // The status says "saved" only after this returns from the flush.
                 Effect::Save(batch) => Input::Saved(records.save(&batch).map(|()| batch)),
                 Effect::Export => Input::Exported(records.export()),
+                Effect::Report => Input::Reported(records.report()),
+                Effect::Sync => Input::Synced(records.sync()),
             };
             effects.extend(update(app, keymap, answer, clock()));
         }

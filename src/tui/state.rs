@@ -97,6 +97,11 @@ pub enum Input {
     Saved(Result<Vec<Record>, String>),
     /// The answer to [`Effect::Export`]: where the files went, or why not.
     Exported(Result<String, String>),
+    /// The answer to [`Effect::Report`]: where the report went, or why not.
+    Reported(Result<String, String>),
+    /// The answer to [`Effect::Sync`]: what was sent and received and the
+    /// records now in the store (the screen's view is rebuilt from them), or why not.
+    Synced(Result<(String, Vec<Record>), String>),
     /// The terminal changed size (the next frame lays out afresh).
     Resize,
     /// Time passed (ages and the round boundary move on).
@@ -110,6 +115,10 @@ pub enum Effect {
     Save(Vec<Record>),
     /// Export the records, then answer with [`Input::Exported`].
     Export,
+    /// Write the round report, then answer with [`Input::Reported`].
+    Report,
+    /// Sync with the shared folder, then answer with [`Input::Synced`].
+    Sync,
     /// Leave the program (every save has already been answered).
     Quit,
 }
@@ -400,6 +409,24 @@ pub fn update(app: &mut App, keymap: &Keymap, input: Input, now: DateTime<FixedO
         }
         Input::Exported(Err(why)) => {
             app.say(StatusKind::Error, format!("Export failed: {why}"));
+            Vec::new()
+        }
+        Input::Reported(Ok(place)) => {
+            app.say(StatusKind::Success, format!("Report written to {place}"));
+            Vec::new()
+        }
+        Input::Reported(Err(why)) => {
+            app.say(StatusKind::Error, format!("Report failed: {why}"));
+            Vec::new()
+        }
+        Input::Synced(Ok((said, records))) => {
+            app.history = History::from_records(records);
+            app.refresh_statuses();
+            app.say(StatusKind::Success, format!("Synced: {said}"));
+            Vec::new()
+        }
+        Input::Synced(Err(why)) => {
+            app.say(StatusKind::Error, format!("Sync failed: {why}"));
             Vec::new()
         }
         Input::Resize => Vec::new(),

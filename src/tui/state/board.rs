@@ -139,6 +139,10 @@ pub fn act(app: &mut App, _keymap: &Keymap, action: Action) -> Vec<Effect> {
             app.say(StatusKind::Info, format!("Showing {what}: {shown} tanks"));
         }
         Action::ShowSummary => summary::open(app),
+        Action::Sync => {
+            app.say(StatusKind::Info, "Syncing with the shared folder…");
+            return vec![Effect::Sync];
+        }
         Action::OpenWhatIf => {
             if let Some(t) = selected(app) {
                 tank_page::open_whatif_for(app, t);

@@ -150,6 +150,10 @@ pub fn act(app: &mut App, action: Action) -> Vec<Effect> {
             app.say(super::StatusKind::Info, "Exporting…");
             return vec![Effect::Export];
         }
+        Action::WriteReport => {
+            app.say(super::StatusKind::Info, "Writing the round report…");
+            return vec![Effect::Report];
+        }
         Action::Back => app.pop_screen(),
         _ => {}
     }
