@@ -15,6 +15,7 @@ use std::path::Path;
 use proptest::prelude::*;
 use proptest::sample::Index;
 use proptest::test_runner::{Config, FileFailurePersistence};
+use tankwalk::exchange;
 use tankwalk::model::facility::Facility;
 use tankwalk::model::record::{DeviceId, Record};
 use tankwalk::store::journal::{self, Header};
@@ -371,6 +372,121 @@ proptest! {
 }
 
 // ---------------------------------------------------------------------------
+// Files given to `import` and read by `sync`: JSON Lines, the CSV, the manifest
+
+/// An export of the sample records: records.jsonl, readings.csv, manifest.json.
+struct ExportSample {
+    jsonl: Vec<u8>,
+    csv: Vec<u8>,
+    manifest: Vec<u8>,
+}
+
+fn export_sample() -> &'static ExportSample {
+    static SAMPLE: std::sync::OnceLock<ExportSample> = std::sync::OnceLock::new();
+    SAMPLE.get_or_init(|| {
+        let dir = tempfile::tempdir().unwrap();
+        let mut store = SledStore::open(&dir.path().join("data")).unwrap();
+        store.append(&sample_records()).unwrap();
+        let out = dir.path().join("export");
+        exchange::export(&store, &out, &exchange::ExportOptions::default(), &mut exchange::no_progress).unwrap();
+        let read = |name: &str| std::fs::read(out.join(name)).unwrap();
+        ExportSample {
+            jsonl: read(exchange::export::RECORDS_FILE),
+            csv: read(exchange::export::READINGS_FILE),
+            manifest: read(exchange::manifest::FILE_NAME),
+        }
+    })
+}
+
+/// Each problem of a refused file names the file and a line of it; only
+/// the note that more problems were not listed stands for the whole file.
+fn check_problems(problems: &[exchange::Problem], files: &[(&Path, &[u8])]) -> Result<(), TestCaseError> {
+    prop_assert!(!problems.is_empty());
+    for p in problems {
+        let Some((_, bytes)) = files.iter().find(|(path, _)| *path == p.path.as_path()) else {
+            return Err(TestCaseError::fail(format!("a problem in a file not given: {p}")));
+        };
+        match p.line {
+            Some(line) => prop_assert!((1..=line_count(bytes) as u64).contains(&line), "line {line}: {p}"),
+            None => prop_assert!(p.message.starts_with("… and "), "not located: {p}"),
+        }
+        prop_assert!(!p.message.trim().is_empty());
+    }
+    Ok(())
+}
+
+proptest! {
+    #![proptest_config(config(256))]
+
+    /// A damaged records file (alone, as a sync segment is read) is refused
+    /// line by line, or read whole.
+    #[test]
+    fn json_lines_files_never_panic_and_every_problem_is_located(bytes in input_from(vec![export_sample().jsonl.clone()])) {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join(exchange::export::RECORDS_FILE);
+        std::fs::write(&path, &bytes).unwrap();
+        if let Err(problems) = exchange::check::check_file_at(&path, chrono::Utc::now(), &mut exchange::no_progress) {
+            check_problems(&problems, &[(&path, &bytes)])?;
+        }
+    }
+
+    /// A damaged manifest beside an intact records file: refused at a line
+    /// of the manifest, or its checksum checked.
+    #[test]
+    fn manifests_never_panic_and_every_problem_is_located(bytes in input_from(vec![export_sample().manifest.clone()])) {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join(exchange::export::RECORDS_FILE);
+        let manifest = dir.path().join(exchange::manifest::FILE_NAME);
+        std::fs::write(&path, &export_sample().jsonl).unwrap();
+        std::fs::write(&manifest, &bytes).unwrap();
+        if let Err(problems) = exchange::check::check_file_at(&path, chrono::Utc::now(), &mut exchange::no_progress) {
+            check_problems(&problems, &[(&path, &export_sample().jsonl), (&manifest, &bytes)])?;
+        }
+    }
+
+    /// The CSV is never imported (it is not lossless): named .csv it is
+    /// refused pointing to the records file; renamed .jsonl it fails at line 1.
+    #[test]
+    fn csv_files_are_refused_at_line_one(bytes in input_from(vec![export_sample().csv.clone()]), renamed in any::<bool>()) {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join(if renamed { "readings.jsonl" } else { exchange::export::READINGS_FILE });
+        std::fs::write(&path, &bytes).unwrap();
+        let problems = exchange::check::check_file_at(&path, chrono::Utc::now(), &mut exchange::no_progress)
+            .expect_err("a CSV is refused");
+        check_problems(&problems, &[(&path, &bytes)])?;
+        if !renamed {
+            prop_assert!(problems[0].message.contains(exchange::export::RECORDS_FILE), "{}", problems[0]);
+        }
+    }
+}
+
+proptest! {
+    #![proptest_config(config(32))]
+
+    /// Importing a damaged file changes nothing in the store, byte for byte;
+    /// importing it when it is whole adds exactly its records.
+    #[test]
+    fn a_damaged_import_changes_nothing(bytes in input_from(vec![export_sample().jsonl.clone()])) {
+        let dir = tempfile::tempdir().unwrap();
+        let data = dir.path().join("data");
+        let path = dir.path().join(exchange::export::RECORDS_FILE);
+        std::fs::write(&path, &bytes).unwrap();
+        let mut store = SledStore::open(&data).unwrap();
+        let conflicts = exchange::ConflictLog::in_data_dir(&data, store.device());
+        let journal_before = std::fs::read(data.join(journal::FILE_NAME)).unwrap();
+        let summary = exchange::import(&mut store, &conflicts, std::slice::from_ref(&path), &mut exchange::no_progress).unwrap();
+        match &summary.files[0].result {
+            Err(problems) => {
+                check_problems(problems, &[(&path, &bytes)])?;
+                prop_assert!(store.is_empty().unwrap());
+                prop_assert_eq!(std::fs::read(data.join(journal::FILE_NAME)).unwrap(), journal_before);
+            }
+            Ok(applied) => prop_assert_eq!(store.len().unwrap(), applied.added),
+        }
+    }
+}
+
+// ---------------------------------------------------------------------------
 // Numbers typed with their unit into the screen's fields
 
 const FIELD_KINDS: [FieldKind; 13] = [
@@ -548,4 +664,19 @@ fn files_that_are_not_utf8_are_refused_at_the_bad_byte() {
     let keys = b"[board]\n\"\xff\" = \"quit\"\n";
     let errors = keymap_text(keys, KEYS_ORIGIN).unwrap_err();
     assert_eq!(errors.to_string(), "fuzz-keys.toml:2: column 2: not UTF-8 text (byte 0xff); save the file as UTF-8");
+}
+
+/// A manifest that is not UTF-8 stopped the import with "cannot read: stream
+/// did not contain valid UTF-8" and no line; now the bad byte is located.
+#[test]
+fn a_manifest_that_is_not_utf8_is_refused_at_the_bad_byte() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join(exchange::export::RECORDS_FILE);
+    let manifest = dir.path().join(exchange::manifest::FILE_NAME);
+    std::fs::write(&path, &export_sample().jsonl).unwrap();
+    std::fs::write(&manifest, b"{\n  \"format\": \"caf\xe9\"\n}\n").unwrap();
+    let problems = exchange::check::check_file_at(&path, chrono::Utc::now(), &mut exchange::no_progress).unwrap_err();
+    assert_eq!(problems.len(), 1);
+    assert_eq!((problems[0].path.as_path(), problems[0].line), (manifest.as_path(), Some(2)));
+    assert!(problems[0].message.starts_with("column 17: not UTF-8 text (byte 0xe9)"), "{}", problems[0]);
 }
