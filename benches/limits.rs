@@ -10,7 +10,11 @@
 //! - first frame: open, load the last 90 days, build the screen's state and
 //!   draw the board at 160x48: what `tankwalk` does before a person sees anything;
 //! - history of one tank over 90 days (the tank and its rack's shared water);
-//! - a frame of the board and of the walk once started.
+//! - a frame of the board and of the walk once started;
+//! - export (JSON Lines) beside a plain write of the same bytes, import into a
+//!   fresh store and re-import, beside SQLite importing the same file; with
+//!   each step's peak memory. These run once per size after the criterion
+//!   groups (a million records are too many for criterion's repetitions).
 //!
 //! The stores are built once and kept under `<target>/bench-stores/` (the
 //! 1,000,000-reading one takes a few minutes to build; delete the folder to
@@ -369,7 +373,187 @@ fn against_the_limits(c: &mut Criterion) {
     for p in &prepared {
         eprintln!("store of {} readings: {} records in all", p.readings, p.records);
     }
+    let exchanged: Vec<Exchanged> = prepared.iter().filter(|p| p.size >= 10_000).map(exchange_once).collect();
     summary(&prepared);
+    exchange_summary(&exchanged);
+}
+
+// ---------------------------------------------------------------------------
+// Export and import, once per size.
+
+/// Resets the peak resident memory (Linux), so the next peak is the next step's own.
+fn reset_peak() {
+    let _ = std::fs::write("/proc/self/clear_refs", "5");
+}
+
+/// `VmHWM` or `VmRSS` of this process, MiB.
+fn memory_mib(key: &str) -> f64 {
+    let status = std::fs::read_to_string("/proc/self/status").unwrap_or_default();
+    let kib: f64 = status
+        .lines()
+        .find(|l| l.starts_with(key))
+        .and_then(|l| l.split_whitespace().nth(1))
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(f64::NAN);
+    kib / 1024.0
+}
+
+/// Runs `step`, returning its time and its peak memory over the resident memory before it (MiB).
+fn measured<T>(step: impl FnOnce() -> T) -> (T, Duration, f64) {
+    reset_peak();
+    let before = memory_mib("VmRSS");
+    let started = Instant::now();
+    let out = step();
+    let took = started.elapsed();
+    (out, took, memory_mib("VmHWM") - before)
+}
+
+/// The same number of bytes written in 64 KiB pieces and synced: the floor of an export.
+fn plain_write(path: &std::path::Path, bytes: u64) -> Duration {
+    use std::io::Write;
+    let chunk = vec![b'x'; 64 * 1024];
+    let started = Instant::now();
+    let mut file = std::io::BufWriter::with_capacity(1 << 16, std::fs::File::create(path).unwrap());
+    let mut left = bytes;
+    while left > 0 {
+        let n = left.min(chunk.len() as u64) as usize;
+        file.write_all(&chunk[..n]).unwrap();
+        left -= n as u64;
+    }
+    file.into_inner().unwrap().sync_all().unwrap();
+    let took = started.elapsed();
+    std::fs::remove_file(path).unwrap();
+    took
+}
+
+/// SQLite importing the same file: each line read, parsed and checked, saved
+/// in transactions of 5,000 (the batch tankwalk's import saves at once).
+fn sqlite_import(file: &std::path::Path, db: &std::path::Path) -> usize {
+    use std::io::BufRead;
+    let mut conn = sqlite_peer::open(db);
+    let reader = std::io::BufReader::with_capacity(1 << 16, std::fs::File::open(file).unwrap());
+    let mut batch: Vec<Record> = Vec::with_capacity(5_000);
+    let mut saved = 0;
+    for line in reader.split(b'\n').skip(1) {
+        let line = line.unwrap();
+        batch.push(tankwalk::store::journal::parse_record(&line).expect("a record"));
+        if batch.len() == 5_000 {
+            sqlite_peer::save(&mut conn, &batch);
+            saved += batch.len();
+            batch.clear();
+        }
+    }
+    sqlite_peer::save(&mut conn, &batch);
+    saved + batch.len()
+}
+
+struct Exchanged {
+    readings: usize,
+    records: usize,
+    bytes: u64,
+    export: (Duration, f64),
+    plain: Duration,
+    import: (Duration, f64),
+    reimport: (Duration, f64),
+    sqlite: (Duration, f64),
+}
+
+fn exchange_once(p: &Prepared) -> Exchanged {
+    use tankwalk::exchange::{self, ConflictLog, ExportOptions, Formats, no_progress};
+    // On the same disk as the stores.
+    let work = tempfile::tempdir_in(bench_stores()).unwrap();
+    let out = work.path().join("export");
+    let store = SledStore::open(&p.dir).unwrap();
+    let options = ExportOptions { formats: Formats::Jsonl, ..ExportOptions::default() };
+    let (summary, took, peak) = measured(|| exchange::export(&store, &out, &options, &mut no_progress).unwrap());
+    drop(store);
+    settle();
+    let file = out.join(exchange::export::RECORDS_FILE);
+    let bytes = std::fs::metadata(&file).unwrap().len();
+    let plain = plain_write(&work.path().join("plain"), bytes);
+    let export = (took, peak);
+    let records = summary.records as usize;
+
+    let fresh = work.path().join("fresh");
+    let mut store = SledStore::open(&fresh).unwrap();
+    let log = ConflictLog::in_data_dir(&fresh, store.device());
+    let files = [file.clone()];
+    let (first, took, peak) = measured(|| exchange::import(&mut store, &log, &files, &mut no_progress).unwrap());
+    assert_eq!(first.added(), records, "the import adds every record");
+    let import = (took, peak);
+    let (again, took, peak) = measured(|| exchange::import(&mut store, &log, &files, &mut no_progress).unwrap());
+    assert_eq!(again.added(), 0, "re-importing adds nothing");
+    let reimport = (took, peak);
+    drop(store);
+    settle();
+    let (saved, took, peak) = measured(|| sqlite_import(&file, &work.path().join("peer.sqlite")));
+    assert_eq!(saved, records);
+    let sqlite = (took, peak);
+    eprintln!("exchanged {} records ({bytes} bytes) for the store of {} readings", records, p.readings);
+    Exchanged { readings: p.readings, records, bytes, export, plain, import, reimport, sqlite }
+}
+
+fn exchange_summary(rows: &[Exchanged]) {
+    if rows.is_empty() {
+        return;
+    }
+    let per_s = |n: usize, d: Duration| n as f64 / d.as_secs_f64();
+    let mb_s = |b: u64, d: Duration| b as f64 / 1e6 / d.as_secs_f64();
+    println!("\nexport and import (one run each; peak = resident high-water mark over the resident before, MiB):");
+    println!(
+        "{:>9} {:>9} {:>11} | {:>10} {:>9} {:>8} {:>9} {:>6} {:>6} | {:>9} {:>9} {:>6} | {:>9} {:>6} | {:>9} {:>6} {:>6}",
+        "readings",
+        "records",
+        "bytes",
+        "export/s",
+        "MB/s",
+        "plain",
+        "MB/s",
+        "ratio",
+        "peak",
+        "import/s",
+        "time",
+        "peak",
+        "again/s",
+        "peak",
+        "SQLite/s",
+        "peak",
+        "ratio"
+    );
+    for r in rows {
+        println!(
+            "{:>9} {:>9} {:>11} | {:>10.0} {:>9.1} {:>8} {:>9.1} {:>6.1} {:>6.0} | {:>9.0} {:>9} {:>6.0} | {:>9.0} {:>6.0} | {:>9.0} {:>6.0} {:>6.2}",
+            r.readings,
+            r.records,
+            r.bytes,
+            per_s(r.records, r.export.0),
+            mb_s(r.bytes, r.export.0),
+            fmt(r.plain),
+            mb_s(r.bytes, r.plain),
+            r.export.0.as_secs_f64() / r.plain.as_secs_f64(),
+            r.export.1,
+            per_s(r.records, r.import.0),
+            fmt(r.import.0),
+            r.import.1,
+            per_s(r.records, r.reimport.0),
+            r.reimport.1,
+            per_s(r.records, r.sqlite.0),
+            r.sqlite.1,
+            r.import.0.as_secs_f64() / r.sqlite.0.as_secs_f64(),
+        );
+    }
+    if let (Some(small), Some(big)) = (rows.first(), rows.last()) {
+        let x = big.records as f64 / small.records as f64;
+        println!("growth from {} to {} readings (records x{x:.0}; x{x:.0} is linear):", small.readings, big.readings);
+        for (what, a, b) in [
+            ("export", small.export.0, big.export.0),
+            ("import", small.import.0, big.import.0),
+            ("re-import", small.reimport.0, big.reimport.0),
+            ("SQLite import", small.sqlite.0, big.sqlite.0),
+        ] {
+            println!("{what:<14} {} -> {}  x{:.1}", fmt(a), fmt(b), b.as_secs_f64() / a.as_secs_f64());
+        }
+    }
 }
 
 fn fmt(d: Duration) -> String {
