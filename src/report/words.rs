@@ -209,7 +209,7 @@ pub fn tank_bands(c: &super::Concern) -> String {
 pub fn judged_for(c: &super::Concern) -> Option<String> {
     (matches!(c.target, Target::System(_)) && c.tanks.len() > 1).then(|| {
         format!(
-            "judged for tank {}, the first of the most severe on the system: its species set the limits of the advice",
+            "judged for tank {}, the first of the most severe on the system (its species' band edges); heater and salt steps suit every species on the shared water",
             c.judged_for
         )
     })
