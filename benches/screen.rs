@@ -4,7 +4,6 @@
 //!
 //! `cargo bench --bench screen`; results go in BENCHMARKS.md.
 
-use std::fmt::Write as _;
 use std::hint::black_box;
 use std::path::Path;
 use std::time::Duration;
@@ -23,38 +22,6 @@ use ulid::Ulid;
 
 fn now() -> DateTime<FixedOffset> {
     FixedOffset::east_opt(3600).unwrap().with_ymd_and_hms(2026, 12, 1, 7, 40, 0).unwrap()
-}
-
-/// A room of `systems` racks of 20 tanks and `standalone` tubs.
-fn large_room(systems: usize, standalone: usize) -> Facility {
-    let mut toml = String::from(
-        "[room]\nname = \"Bench hall\"\nelevation_m = 0\nkit_basis = \"n\"\n\n\
-         [[species]]\nkey = \"guppy\"\nname = \"Guppy (Poecilia reticulata)\"\nwater_type = \"fresh\"\n\
-         temp_c = [22, 28]\nph = [7.0, 8.5]\nsalt_tolerance_g_l = 10\n\n",
-    );
-    let mut tanks = String::new();
-    for s in 0..systems {
-        let ids: Vec<String> = (0..20).map(|t| format!("\"S{s:02}-{t:02}\"")).collect();
-        let _ = writeln!(
-            toml,
-            "[[systems]]\nid = \"SYS-{s:02}\"\nname = \"Rack {s}\"\nvolume_l = 2600\nwater_type = \"fresh\"\ntanks = [{}]\n",
-            ids.join(", ")
-        );
-        for t in 0..20 {
-            let _ = writeln!(
-                tanks,
-                "[[tanks]]\nid = \"S{s:02}-{t:02}\"\nvolume_l = 120\nspecies = \"guppy\"\nstock_count = 50\nset_up = 2024-01-01\n"
-            );
-        }
-    }
-    for t in 0..standalone {
-        let _ = writeln!(
-            tanks,
-            "[[tanks]]\nid = \"TUB-{t:03}\"\nvolume_l = 80\nspecies = \"guppy\"\nstock_count = 20\nset_up = 2024-01-01\n"
-        );
-    }
-    toml.push_str(&tanks);
-    Facility::parse(&toml, Path::new("bench-hall.toml")).expect("the bench room is valid")
 }
 
 fn session() -> SessionInfo {
@@ -83,7 +50,7 @@ fn press(app: &mut App, keymap: &Keymap, keys: &str) {
 fn frames(c: &mut Criterion) {
     let keymap = Keymap::default_map();
     // 40 racks of 20 tanks and 200 tubs: 1,000 tanks, 30 days of history.
-    let room = large_room(40, 200);
+    let room = tankwalk::demo::generated_room(40, 200);
     let history = tankwalk::demo::history(&room, DeviceId(Ulid::from_parts(1, 1)), now(), 30, 5);
     let board = app_with(room, history);
     let mut group = c.benchmark_group("frame");
@@ -120,7 +87,7 @@ fn frames(c: &mut Criterion) {
 fn start(c: &mut Criterion) {
     let keymap = Keymap::default_map();
     // 1,000 tanks; 240 waters a day for 417 days: 100,080 readings (plus water changes).
-    let room = large_room(40, 200);
+    let room = tankwalk::demo::generated_room(40, 200);
     let records = tankwalk::demo::history(&room, DeviceId(Ulid::from_parts(1, 1)), now(), 417, 9);
     let readings = records.iter().filter(|r| r.body.as_reading().is_some()).count();
     eprintln!("start: {} records, {readings} readings", records.len());

@@ -136,6 +136,11 @@ pub fn open_store(global: &GlobalArgs) -> anyhow::Result<tankwalk::store::SledSt
 
 /// Parses the command line, runs it and maps the outcome to an exit code.
 pub fn main() -> ExitCode {
+    say_what_a_panic_means();
+    if let Some(message) = non_utf8_argument(std::env::args_os()) {
+        eprintln!("tankwalk: {message}");
+        return ExitCode::from(2);
+    }
     let cli = match Cli::try_parse() {
         Ok(cli) => cli,
         Err(err) => {
@@ -153,6 +158,40 @@ pub fn main() -> ExitCode {
             ExitCode::from(if err.downcast_ref::<BadInput>().is_some() { 2 } else { 1 })
         }
     }
+}
+
+/// After the usual panic message, says what it means for the records. The
+/// screen's own hook (from `ratatui::try_init`, installed later) restores the
+/// terminal first and then calls this one.
+fn say_what_a_panic_means() {
+    let default = std::panic::take_hook();
+    std::panic::set_hook(Box::new(move |info| {
+        default(info);
+        eprintln!(
+            "tankwalk: this is a bug in tankwalk; please report the message above. Every record that \
+             tankwalk said was saved is on disk (`tankwalk doctor` checks); an entry not yet saved was lost."
+        );
+    }));
+}
+
+/// Names the first argument that is not UTF-8 text, by its option: clap
+/// would only say that some argument is not.
+fn non_utf8_argument(args: impl IntoIterator<Item = std::ffi::OsString>) -> Option<String> {
+    let mut previous: Option<String> = None;
+    for arg in args.into_iter().skip(1) {
+        match arg.to_str() {
+            Some(text) => previous = Some(text.to_string()),
+            None => {
+                let lossy = arg.to_string_lossy();
+                let option = match lossy.split_once('=') {
+                    Some((option, _)) if option.starts_with("--") => option.to_string(),
+                    _ => previous.filter(|p| p.starts_with('-')).unwrap_or_else(|| "an argument".to_string()),
+                };
+                return Some(format!("{option}: '{lossy}' is not UTF-8 text (the bad bytes are shown as \u{fffd})"));
+            }
+        }
+    }
+    None
 }
 
 fn is_broken_pipe(err: &anyhow::Error) -> bool {
@@ -189,6 +228,21 @@ fn run(cli: Cli) -> anyhow::Result<ExitCode> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    #[cfg(unix)]
+    fn an_argument_that_is_not_utf8_is_named_by_its_option() {
+        use std::ffi::OsString;
+        use std::os::unix::ffi::OsStringExt;
+        let args = |last: &[u8]| {
+            ["tankwalk", "record", "--ph"].iter().map(OsString::from).chain([OsString::from_vec(last.to_vec())])
+        };
+        assert_eq!(non_utf8_argument(args(b"7.2")), None);
+        let message = non_utf8_argument(args(b"\xb35")).unwrap();
+        assert!(message.starts_with("--ph: '\u{fffd}5' is not UTF-8"), "{message}");
+        let message = non_utf8_argument(args(b"--temp-c=\xb35")).unwrap();
+        assert!(message.starts_with("--temp-c: "), "{message}");
+    }
 
     #[test]
     fn command_line_definition_is_consistent() {

@@ -60,6 +60,10 @@ struct Water {
     target: Target,
     temp_c: f64,
     ph: f64,
+    /// Where temperature and pH wander around (the heater's set-point, the
+    /// water's buffer): the drift stays within reach of them however long the history.
+    usual_temp_c: f64,
+    usual_ph: f64,
     tan: f64,
     nitrite: f64,
     nitrate: f64,
@@ -97,6 +101,8 @@ fn waters(facility: &Facility, rng: &mut Rng) -> Vec<Water> {
             target: Target::System(system.id.as_str().to_string()),
             temp_c: round_to(temp, 0.5),
             ph: round_to(ph.clamp(6.8, 8.2), 0.1),
+            usual_temp_c: round_to(temp, 0.5),
+            usual_ph: round_to(ph.clamp(6.8, 8.2), 0.1),
             tan: 0.1 + 0.15 * rng.unit(),
             nitrite: 0.05 * rng.unit(),
             nitrate: 10.0 + 20.0 * rng.unit(),
@@ -111,6 +117,8 @@ fn waters(facility: &Facility, rng: &mut Rng) -> Vec<Water> {
             target: Target::Tank(tank.id.as_str().to_string()),
             temp_c: round_to(temp, 0.5),
             ph: round_to(ph.clamp(6.0, 8.4), 0.1),
+            usual_temp_c: round_to(temp, 0.5),
+            usual_ph: round_to(ph.clamp(6.0, 8.4), 0.1),
             tan: 0.1 + 0.2 * rng.unit(),
             nitrite: 0.05 * rng.unit(),
             nitrate: 10.0 + 20.0 * rng.unit(),
@@ -132,6 +140,7 @@ fn waters(facility: &Facility, rng: &mut Rng) -> Vec<Water> {
     if let Some(&i) = standalone.first() {
         waters[i].story = Story::AcidTank;
         waters[i].ph = 6.5;
+        waters[i].usual_ph = 6.5;
         waters[i].tan = 2.5;
     }
     if standalone.len() >= 2
@@ -140,6 +149,43 @@ fn waters(facility: &Facility, rng: &mut Rng) -> Vec<Water> {
         waters[i].story = Story::SickFish;
     }
     waters
+}
+
+/// A generated room for trying tankwalk at scale (benchmarks, load tests):
+/// `racks` systems of 20 guppy tanks each (`SYS-00`, tanks `S00-00` ...) and
+/// `tubs` standalone tubs (`TUB-000` ...). The species figures are the
+/// demo's, not advice.
+pub fn generated_room(racks: usize, tubs: usize) -> Facility {
+    use std::fmt::Write as _;
+    let mut toml = String::from(
+        "[room]\nname = \"Generated hall\"\nelevation_m = 0\nkit_basis = \"n\"\n\n\
+         [[species]]\nkey = \"guppy\"\nname = \"Guppy (Poecilia reticulata)\"\nwater_type = \"fresh\"\n\
+         temp_c = [22, 28]\nph = [7.0, 8.5]\nsalt_tolerance_g_l = 10\n\n",
+    );
+    let mut tanks = String::new();
+    for s in 0..racks {
+        let ids: Vec<String> = (0..20).map(|t| format!("\"S{s:02}-{t:02}\"")).collect();
+        let _ = writeln!(
+            toml,
+            "[[systems]]\nid = \"SYS-{s:02}\"\nname = \"Rack {s}\"\nvolume_l = 2600\nwater_type = \"fresh\"\ntanks = [{}]\n",
+            ids.join(", ")
+        );
+        for t in 0..20 {
+            let _ = writeln!(
+                tanks,
+                "[[tanks]]\nid = \"S{s:02}-{t:02}\"\nvolume_l = 120\nspecies = \"guppy\"\nstock_count = 50\nset_up = 2024-01-01\n"
+            );
+        }
+    }
+    for t in 0..tubs {
+        let _ = writeln!(
+            tanks,
+            "[[tanks]]\nid = \"TUB-{t:03}\"\nvolume_l = 80\nspecies = \"guppy\"\nstock_count = 20\nset_up = 2024-01-01\n"
+        );
+    }
+    toml.push_str(&tanks);
+    // Racks and tubs are numbered within the id rules, so the file is valid by construction.
+    Facility::parse(&toml, std::path::Path::new("generated-hall.toml")).expect("the generated room is valid")
 }
 
 /// Builds `days` days of morning rounds ending the day before `end` (so the
@@ -318,8 +364,8 @@ pub fn round_in_progress(
 }
 
 fn drift(water: &mut Water, days_left: i64, rng: &mut Rng) {
-    water.temp_c = (water.temp_c + 0.15 * rng.signed()).clamp(water.temp_c - 1.0, water.temp_c + 1.0);
-    water.ph = (water.ph + 0.04 * rng.signed()).clamp(water.ph - 0.2, water.ph + 0.2);
+    water.temp_c = (water.temp_c + 0.15 * rng.signed()).clamp(water.usual_temp_c - 1.0, water.usual_temp_c + 1.0);
+    water.ph = (water.ph + 0.04 * rng.signed()).clamp(water.usual_ph - 0.2, water.usual_ph + 0.2);
     match water.story {
         Story::FilterHurt if days_left <= 11 => {
             water.tan += 0.2 + 0.1 * rng.unit();
@@ -407,6 +453,26 @@ mod tests {
         ids.sort();
         ids.dedup();
         assert_eq!(ids.len(), records.len());
+    }
+
+    /// Temperature and pH used to wander without bound (the clamp was around
+    /// the moving value): eleven years of history on the benchmark's room reached
+    /// 40.2 °C, which the record checks refuse (found by the limits benchmark).
+    #[test]
+    fn temperature_and_ph_stay_near_their_usual_values_over_ten_years() {
+        let records = history(&room(), DeviceId(Ulid::from_parts(1, 1)), end(), 3650, 11);
+        let mut seen: std::collections::HashMap<String, (f64, f64, f64, f64)> = std::collections::HashMap::new();
+        for r in &records {
+            r.check().unwrap_or_else(|e| panic!("{e}: {r:?}"));
+            let Some(reading) = r.body.as_reading() else { continue };
+            let (Some(t), Some(ph)) = (reading.measurements.temp_c(), reading.measurements.ph) else { continue };
+            let e = seen.entry(reading.target.to_string()).or_insert((t, t, ph, ph));
+            *e = (e.0.min(t), e.1.max(t), e.2.min(ph), e.3.max(ph));
+        }
+        for (water, (t_min, t_max, ph_min, ph_max)) in seen {
+            assert!(t_max - t_min <= 2.1, "{water}: temperature {t_min}–{t_max}");
+            assert!(ph_max - ph_min <= 0.41, "{water}: pH {ph_min}–{ph_max}");
+        }
     }
 
     #[test]

@@ -28,6 +28,7 @@ pub mod paths;
 pub mod report;
 pub mod rules;
 pub mod store;
+pub mod text;
 pub mod timeline;
 pub mod tui;
 

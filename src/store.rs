@@ -149,6 +149,17 @@ pub enum StoreError {
         /// The system's error.
         source: std::io::Error,
     },
+    /// The disk holding the data folder is full: what was being saved was not.
+    #[error(
+        "the disk is full: {what} {} (no space left on the device). Nothing of this command was saved; \
+         free some space on that disk and try again. Every record saved before is safe", .path.display()
+    )]
+    DiskFull {
+        /// What was being done ("cannot write", ...).
+        what: &'static str,
+        /// The file or folder.
+        path: PathBuf,
+    },
     /// The sled database failed.
     #[error("the record database in {} failed: {message}; run `tankwalk doctor`", .path.display())]
     Database {
@@ -208,6 +219,14 @@ pub enum StoreError {
 
 impl StoreError {
     pub(crate) fn io(what: &'static str, path: impl Into<PathBuf>, source: std::io::Error) -> StoreError {
+        if is_disk_full(&source) {
+            return StoreError::DiskFull { what, path: path.into() };
+        }
         StoreError::Io { what, path: path.into(), source }
     }
+}
+
+/// True for the errors of a full disk (or a used-up disk quota).
+pub(crate) fn is_disk_full(error: &std::io::Error) -> bool {
+    matches!(error.kind(), std::io::ErrorKind::StorageFull | std::io::ErrorKind::QuotaExceeded)
 }

@@ -2,7 +2,9 @@
 //! never leaves a half file under a real name and never loses a record;
 //! running the command again completes the work.
 //!
-//! Each test kills a handful of times (the seed is printed, to replay a failure).
+//! Each test kills a handful of times (the seed is printed, to replay a failure);
+//! the long versions (ignored by default) kill each command 200 times:
+//! `cargo test --release --test exchange_crash -- --ignored --nocapture`.
 
 use std::collections::BTreeSet;
 use std::fs;
@@ -19,6 +21,8 @@ use ulid::Ulid;
 
 const RECORDS: usize = 500;
 const KILLS: usize = 6;
+/// Kills of each command in the long versions.
+const SOAK_KILLS: usize = 200;
 
 /// xorshift64*, seeded from the clock and printed.
 struct Rng(u64);
@@ -121,6 +125,17 @@ fn check_export_folder(out: &Path) {
 
 #[test]
 fn killing_export_never_leaves_a_half_file() {
+    export_with_kills(KILLS);
+}
+
+#[test]
+#[ignore = "long soak: run with --ignored (ideally --release)"]
+fn killing_export_two_hundred_times_never_leaves_a_half_file() {
+    export_with_kills(SOAK_KILLS);
+}
+
+/// Kills `export` `kills` times; no half file under a real name, the store untouched.
+fn export_with_kills(kills: usize) {
     let mut rng = Rng::seeded();
     let data = tempfile::tempdir().unwrap();
     let dir = data.path();
@@ -132,7 +147,7 @@ fn killing_export_never_leaves_a_half_file() {
     let args = ["export", "--out", out.to_str().unwrap()];
     let typical = run(dir, &args);
     let mut killed = 0;
-    while killed < KILLS {
+    while killed < kills {
         killed += usize::from(kill_somewhere(dir, &args, typical, &mut rng));
         check_export_folder(&out);
     }
@@ -145,6 +160,17 @@ fn killing_export_never_leaves_a_half_file() {
 
 #[test]
 fn killing_import_loses_nothing_and_importing_again_completes_it() {
+    import_with_kills(KILLS);
+}
+
+#[test]
+#[ignore = "long soak: run with --ignored (ideally --release)"]
+fn killing_import_two_hundred_times_loses_nothing() {
+    import_with_kills(SOAK_KILLS);
+}
+
+/// Kills `import` `kills` times; nothing stored before is lost, nothing but the file comes in.
+fn import_with_kills(kills: usize) {
     let mut rng = Rng::seeded();
     let work = tempfile::tempdir().unwrap();
     let (a, b) = (work.path().join("a"), work.path().join("b"));
@@ -169,7 +195,7 @@ fn killing_import_loses_nothing_and_importing_again_completes_it() {
     fs::copy(b.join("journal.jsonl"), probe.join("journal.jsonl")).unwrap();
     let typical = run(&probe, &args);
     let mut killed = 0;
-    while killed < KILLS {
+    while killed < kills {
         killed += usize::from(kill_somewhere(&b, &args, typical, &mut rng));
         let now = ids(&b);
         assert!(now.is_superset(&own), "records saved before the import are kept");
@@ -181,6 +207,17 @@ fn killing_import_loses_nothing_and_importing_again_completes_it() {
 
 #[test]
 fn killing_sync_never_leaves_a_half_segment_and_loses_nothing() {
+    sync_with_kills(KILLS);
+}
+
+#[test]
+#[ignore = "long soak: run with --ignored (ideally --release)"]
+fn killing_sync_two_hundred_times_loses_nothing() {
+    sync_with_kills(SOAK_KILLS);
+}
+
+/// Kills `sync` `kills` times on the sending laptop, then on the receiving one.
+fn sync_with_kills(kills: usize) {
     let mut rng = Rng::seeded();
     let work = tempfile::tempdir().unwrap();
     let (a, b) = (work.path().join("a"), work.path().join("b"));
@@ -195,21 +232,61 @@ fn killing_sync_never_leaves_a_half_segment_and_loses_nothing() {
     fs::create_dir(&probe).unwrap();
     let typical = run(&a, &["sync", probe.to_str().unwrap()]);
     let mut killed = 0;
-    while killed < KILLS {
+    while killed < kills {
         killed += usize::from(kill_somewhere(&a, &args, typical, &mut rng));
-        for device in fs::read_dir(&shared).unwrap() {
-            for file in fs::read_dir(device.unwrap().path()).unwrap() {
-                let path = file.unwrap().path();
-                let name = path.file_name().unwrap().to_string_lossy().into_owned();
-                if name.starts_with("segment-") {
-                    check_file(&path, &mut no_progress).unwrap_or_else(|p| panic!("half segment: {p:?}"));
-                } else {
-                    assert!(name.starts_with('.') && name.ends_with(".partial"), "unexpected file {name}");
-                }
+        check_segments(&shared);
+    }
+    run(&a, &args);
+    check_segments(&shared);
+
+    // The receiving laptop, with records of its own, killed while it reads A's
+    // segments and writes its own.
+    let mut store = SledStore::open(&b).unwrap();
+    let own = readings(7);
+    store.append(&own).unwrap();
+    drop(store);
+    let own: BTreeSet<Ulid> = own.iter().map(|r| r.id).collect();
+    let everything: BTreeSet<Ulid> = ids(&a).union(&own).copied().collect();
+    // Time a whole sync of B on copies (B's journal, the shared folder), so B's own folder stays untouched.
+    let (probe, probe_shared) = (work.path().join("probe-b"), work.path().join("probe-shared"));
+    fs::create_dir(&probe).unwrap();
+    fs::copy(b.join("journal.jsonl"), probe.join("journal.jsonl")).unwrap();
+    copy_tree(&shared, &probe_shared);
+    let typical = run(&probe, &["sync", probe_shared.to_str().unwrap()]);
+    let mut killed = 0;
+    while killed < kills {
+        killed += usize::from(kill_somewhere(&b, &args, typical, &mut rng));
+        let now = ids(&b);
+        assert!(now.is_superset(&own), "the receiving laptop keeps its own records");
+        assert!(now.is_subset(&everything), "nothing but the two laptops' records");
+        check_segments(&shared);
+    }
+    run(&b, &args);
+    run(&a, &args);
+    assert_eq!(ids(&b), everything, "the receiving laptop has every record, once");
+    assert_eq!(ids(&a), everything, "and so has the sending one");
+}
+
+fn copy_tree(from: &Path, to: &Path) {
+    fs::create_dir_all(to).unwrap();
+    for entry in fs::read_dir(from).unwrap() {
+        let path = entry.unwrap().path();
+        let target = to.join(path.file_name().unwrap());
+        if path.is_dir() { copy_tree(&path, &target) } else { fs::copy(&path, &target).map(|_| ()).unwrap() }
+    }
+}
+
+/// Every segment under a real name in the shared folder is whole.
+fn check_segments(shared: &Path) {
+    for device in fs::read_dir(shared).unwrap() {
+        for file in fs::read_dir(device.unwrap().path()).unwrap() {
+            let path = file.unwrap().path();
+            let name = path.file_name().unwrap().to_string_lossy().into_owned();
+            if name.starts_with("segment-") {
+                check_file(&path, &mut no_progress).unwrap_or_else(|p| panic!("half segment: {p:?}"));
+            } else {
+                assert!(name.starts_with('.') && name.ends_with(".partial"), "unexpected file {name}");
             }
         }
     }
-    run(&a, &args);
-    run(&b, &args);
-    assert_eq!(ids(&b), ids(&a), "the other laptop has every record, once");
 }

@@ -3,6 +3,9 @@
 //! writes the round report from the summary and quits; `tankwalk log --json`
 //! must then hold exactly those five readings and the skip with its reason.
 //!
+//! A second test makes the screen panic (by fault injection) in the middle of
+//! the walk and checks that the terminal is left usable and no save is lost.
+//!
 //! tmux must be installed (`.ci/run` installs it).
 
 use std::path::Path;
@@ -29,6 +32,16 @@ impl Tmux {
 
     fn screen(&self) -> String {
         self.run(&["capture-pane", "-p", "-t", "e2e"])
+    }
+
+    /// The pane and its history, wrapped lines joined.
+    fn screen_and_history(&self) -> String {
+        self.run(&["capture-pane", "-p", "-J", "-S", "-", "-t", "e2e"])
+    }
+
+    /// A tmux format of the pane (`#{alternate_on}`, `#{cursor_flag}`, ...).
+    fn pane(&self, format: &str) -> String {
+        self.run(&["display-message", "-p", "-t", "e2e", format]).trim().to_string()
     }
 
     /// Waits until the screen shows `text`; on timeout fails with the screen.
@@ -139,4 +152,70 @@ fn walk_five_tubs_skip_one_quit_and_the_log_has_exactly_those_readings() {
         assert!(row["tan_n_mg_l"].as_f64().is_some(), "{tank}");
         assert!(row["supersedes"].is_null(), "{tank}");
     }
+}
+
+#[test]
+fn a_panic_inside_the_screen_leaves_the_terminal_usable_and_keeps_earlier_saves() {
+    let data = tempfile::tempdir().unwrap();
+    let room = Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-rooms/cattail-bend-tubs.toml");
+    let stty = data.path().join("stty-after.txt");
+    let tmux = Tmux { socket: format!("tankwalk-panic-{}", std::process::id()) };
+    // The shell runs tankwalk, then records the terminal's modes, then waits for typing.
+    let command = format!(
+        "env -u TANKWALK_KEYMAP -u TANKWALK_ROOM -u RUST_BACKTRACE NO_COLOR=1 TANKWALK_OPERATOR=e2e-tester \
+         TANKWALK_TEST_PANIC_ON_SAVE=2 {} --room {} --data-dir {}; \
+         echo \"tankwalk exited $?\"; stty -a > {}; exec sh",
+        shell_quote(BIN),
+        shell_quote(&room.to_string_lossy()),
+        shell_quote(&data.path().to_string_lossy()),
+        shell_quote(&stty.to_string_lossy()),
+    );
+    tmux.run(&["-f", "/dev/null", "new-session", "-d", "-s", "e2e", "-x", "100", "-y", "30", &command]);
+    tmux.run(&["set-option", "-g", "escape-time", "0"]);
+    tmux.wait_for("Room board");
+    assert_eq!(tmux.pane("#{alternate_on}"), "1", "the screen runs on the alternate screen");
+    tmux.keys(&["w"]);
+    tmux.wait_for(" T-01 ");
+    // The tub room reads pH first, then °F, total ammonia, nitrite.
+    tmux.keys(&["7.2", "Enter", "78", "Enter", "0.3", "Enter", "0.05", "s"]);
+    tmux.wait_for("Saved: T-01 is on disk");
+    // The second save panics inside the screen.
+    tmux.wait_for(" T-02 ");
+    tmux.keys(&["7.4", "Enter", "77", "Enter", "0.5", "Enter", "0.1", "s"]);
+    tmux.wait_for("tankwalk exited 101");
+
+    let screen = tmux.screen_and_history();
+    assert!(screen.contains("fault injected"), "the panic message is shown:\n{screen}");
+    // Nothing wrote over the message: it is still there, above the shell's line.
+    let at = |text: &str| screen.find(text).unwrap_or_else(|| panic!("{text:?} is not on screen:\n{screen}"));
+    assert!(at("panicked at") < at("tankwalk exited 101"), "{screen}");
+    assert!(screen.contains("Every record that tankwalk said was saved is on disk"), "{screen}");
+    assert_eq!(tmux.pane("#{alternate_on}"), "0", "back on the main screen:\n{screen}");
+    assert_eq!(tmux.pane("#{cursor_flag}"), "1", "the cursor is visible again");
+    // Cooked mode again: line editing and echo on (raw mode turns both off).
+    let deadline = Instant::now() + Duration::from_secs(10);
+    while !stty.exists() && Instant::now() < deadline {
+        std::thread::sleep(Duration::from_millis(50));
+    }
+    let modes = std::fs::read_to_string(&stty).unwrap();
+    let words: Vec<&str> = modes.split_whitespace().collect();
+    for mode in ["icanon", "echo", "isig", "icrnl", "opost"] {
+        assert!(words.contains(&mode), "'{mode}' is off after the panic:\n{modes}");
+    }
+    // And a person can type a command at the shell and see it answered.
+    tmux.run(&["send-keys", "-t", "e2e", "-l", "echo usable-$((6*7))"]);
+    tmux.keys(&["Enter"]);
+    tmux.wait_for("usable-42");
+
+    // The save before the panic is on disk; the one that panicked is not.
+    let out = Command::new(BIN)
+        .args(["log", "--json", "--data-dir"])
+        .arg(data.path())
+        .env_remove("TANKWALK_ROOM")
+        .output()
+        .unwrap();
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let log: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let tanks: Vec<&str> = log.as_array().unwrap().iter().map(|r| r["tank"].as_str().unwrap()).collect();
+    assert_eq!(tanks, ["T-01"], "{log:#}");
 }

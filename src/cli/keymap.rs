@@ -10,7 +10,7 @@ use anyhow::Context as _;
 use clap::{Args, Subcommand};
 use serde::Serialize;
 use tankwalk::tui::help::{self, HelpRow};
-use tankwalk::tui::keymap::{Context, DEFAULT_KEYMAP_ORIGIN, Keymap};
+use tankwalk::tui::keymap::{Context, DEFAULT_KEYMAP_ORIGIN, Keymap, keymap_text};
 
 use super::{GlobalArgs, bad_input};
 
@@ -90,9 +90,10 @@ pub fn load(global: &GlobalArgs, option: &KeymapOption) -> anyhow::Result<Loaded
 }
 
 fn read_over_default(path: &Path) -> anyhow::Result<Keymap> {
-    let text = std::fs::read_to_string(path)
-        .map_err(|err| bad_input!("cannot read the keymap '{}': {err}", path.display()))?;
-    Keymap::default_with_overrides(&text, &path.display().to_string())
+    let bytes = std::fs::read(path).map_err(|err| bad_input!("cannot read the keymap '{}': {err}", path.display()))?;
+    let origin = path.display().to_string();
+    keymap_text(&bytes, &origin)
+        .and_then(|text| Keymap::default_with_overrides(text, &origin))
         .map_err(|errors| bad_input!("the keymap has mistakes (fix them, or move the file away):\n{errors}"))
 }
 
@@ -105,11 +106,12 @@ pub fn run(global: &GlobalArgs, option: &KeymapOption, args: &KeymapArgs) -> any
 }
 
 fn check(file: &Path) -> anyhow::Result<ExitCode> {
-    let text = std::fs::read_to_string(file)
-        .map_err(|err| bad_input!("cannot read the keymap '{}': {err}", file.display()))?;
-    match Keymap::default_with_overrides(&text, &file.display().to_string()) {
-        Ok(keymap) => {
-            let own = Keymap::from_toml(&text, &file.display().to_string())
+    let bytes = std::fs::read(file).map_err(|err| bad_input!("cannot read the keymap '{}': {err}", file.display()))?;
+    let origin = file.display().to_string();
+    match keymap_text(&bytes, &origin).and_then(|text| Keymap::default_with_overrides(text, &origin).map(|k| (k, text)))
+    {
+        Ok((keymap, text)) => {
+            let own = Keymap::from_toml(text, &origin)
                 .map(|own| Context::ALL.iter().map(|c| own.own(*c).count()).sum::<usize>())
                 .unwrap_or(0);
             let total: usize = Context::ALL.iter().map(|c| keymap.own(*c).count()).sum();

@@ -9,12 +9,12 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use anyhow::Context as _;
-use chrono::{DateTime, Duration, FixedOffset};
+use chrono::{DateTime, FixedOffset};
 use clap::{Args, ValueEnum};
 use tankwalk::exchange::{self, ExportOptions, Formats};
 use tankwalk::model::facility::Facility;
 use tankwalk::model::record::Record;
-use tankwalk::store::{SledStore, Store, TimeRange};
+use tankwalk::store::{SledStore, Store};
 use tankwalk::tui::run::{self, Records};
 use tankwalk::tui::state::{App, SessionInfo};
 use tankwalk::tui::terminal;
@@ -22,9 +22,6 @@ use ulid::Ulid;
 
 use super::keymap::{self, KeymapOption};
 use super::{GlobalArgs, bad_input};
-
-/// How far back the screen loads records: the longest chart period.
-pub const LOADED_DAYS: i64 = 90;
 
 /// The bundled sample rooms, embedded so the demo runs from anywhere.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -89,10 +86,22 @@ struct StoreRecords {
     reports: PathBuf,
     data_dir: PathBuf,
     saved: usize,
+    saves: usize,
+    /// Fault injection for the tests: panic at this save (see [`PANIC_ON_SAVE`]).
+    panic_on_save: Option<usize>,
 }
+
+/// Makes the screen panic at the Nth save (1 = the first), while the terminal
+/// is in raw mode on the alternate screen: the tests use it to check that a
+/// panic leaves the terminal usable and loses no earlier save.
+pub const PANIC_ON_SAVE: &str = "TANKWALK_TEST_PANIC_ON_SAVE";
 
 impl Records for StoreRecords {
     fn save(&mut self, records: &[Record]) -> Result<(), String> {
+        self.saves += 1;
+        if self.panic_on_save == Some(self.saves) {
+            panic!("fault injected by {PANIC_ON_SAVE} at save {}", self.saves);
+        }
         self.store.append(records).map(|_| self.saved += records.len()).map_err(|e| e.to_string())
     }
 
@@ -111,7 +120,7 @@ impl Records for StoreRecords {
             .ok_or("no shared folder yet: run `tankwalk sync DIR` once in a terminal, and tankwalk remembers it")?;
         let summary =
             exchange::sync(&mut self.store, &folder, &mut exchange::no_progress).map_err(|e| e.to_string())?;
-        let records = load_records(&self.store, now()).map_err(|e| format!("{e:#}"))?;
+        let records = run::records_to_show(&self.store, now()).map_err(|e| format!("{e:#}"))?;
         let sent = summary.sent.as_ref().map_or(0, |s| s.records);
         let mut said = format!("sent {sent}, received {} new", summary.added());
         if summary.conflicts() > 0 {
@@ -135,14 +144,6 @@ fn export_folder(store: &SledStore, dir: &Path, facility: &Facility) -> anyhow::
     Ok(format!("{} ({} records, {} reading rows)", folder.display(), summary.records, summary.rows))
 }
 
-/// The records the screen shows: those of the last [`LOADED_DAYS`] days (a
-/// correction is filed at the time of the record it corrects, so it comes
-/// with it), read through the store's time index.
-fn load_records(store: &SledStore, now: DateTime<FixedOffset>) -> anyhow::Result<Vec<Record>> {
-    let since = (now - Duration::days(LOADED_DAYS)).with_timezone(&chrono::Utc);
-    Ok(store.history(&[], &TimeRange::new(Some(since), None))?)
-}
-
 fn run_screen(
     facility: Facility,
     store: SledStore,
@@ -150,11 +151,12 @@ fn run_screen(
     keymap: &tankwalk::tui::Keymap,
 ) -> anyhow::Result<usize> {
     let started = now();
-    let records = load_records(&store, started)?;
+    let records = run::records_to_show(&store, started)?;
     let session = SessionInfo { operator: operator(), device: store.device(), id_seed: Ulid::generate().random() };
     let exported_room = facility.clone();
     let mut app = App::new(facility, records, session, started);
     app.colour = terminal::colour_wanted();
+    let panic_on_save = std::env::var(PANIC_ON_SAVE).ok().and_then(|n| n.trim().parse().ok());
     let mut records = StoreRecords {
         store,
         facility: exported_room,
@@ -162,6 +164,8 @@ fn run_screen(
         reports: data_dir.join("reports"),
         data_dir: data_dir.to_path_buf(),
         saved: 0,
+        saves: 0,
+        panic_on_save,
     };
     run::run(&mut app, keymap, &mut records, &now)?;
     Ok(records.saved)

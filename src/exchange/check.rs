@@ -342,12 +342,14 @@ fn check_header_totals(header: &Header, body: u64, lines: u64, body_sha256: &str
 /// Checks `path` against the manifest at `manifest_path`: `Ok(false)` when
 /// the manifest does not list it.
 fn check_manifest(path: &Path, manifest_path: &Path, bytes: u64, sha256: &str, lines: u64) -> Result<bool, Problem> {
-    let text = std::fs::read_to_string(manifest_path)
-        .map_err(|e| Problem::whole(manifest_path, format!("cannot read: {e}")))?;
-    let manifest = Manifest::parse(&text).map_err(|(line, message)| Problem::at(manifest_path, line, message))?;
+    let raw = std::fs::read(manifest_path).map_err(|e| Problem::whole(manifest_path, format!("cannot read: {e}")))?;
+    // A manifest that is not UTF-8 is refused at its first bad byte, like any other mistake in it.
+    let text = crate::text::decode(&raw)
+        .map_err(|bad| Problem::at(manifest_path, bad.line as u64, format!("column {}: {bad}", bad.column)))?;
+    let manifest = Manifest::parse(text).map_err(|(line, message)| Problem::at(manifest_path, line, message))?;
     let name = path.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_default();
     let Some(entry) = manifest.entry(&name) else { return Ok(false) };
-    let line = manifest::line_of_entry(&text, &name);
+    let line = manifest::line_of_entry(text, &name);
     let mismatch = |what: String| {
         Problem::at(
             manifest_path,

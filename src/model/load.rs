@@ -57,6 +57,24 @@ impl Facility {
         }
     }
 
+    /// Like [`Facility::check`], from the file's bytes: text that is not
+    /// UTF-8 is refused at the line and column of its first bad byte.
+    pub fn check_bytes(bytes: &[u8], origin: &Path, today: Option<NaiveDate>) -> Result<Checked, FacilityErrors> {
+        match crate::text::decode(bytes) {
+            Ok(text) => Facility::check(text, origin, today),
+            Err(bad) => Err(FacilityErrors {
+                errors: vec![Problem {
+                    file: origin.to_path_buf(),
+                    line: bad.line,
+                    column: bad.column,
+                    field: String::new(),
+                    message: bad.to_string(),
+                    severity: Severity::Error,
+                }],
+            }),
+        }
+    }
+
     /// Reads and parses a facility file.
     pub fn load(path: &Path) -> Result<Facility, LoadError> {
         Facility::load_checked(path, None).map(|checked| checked.facility)
@@ -64,9 +82,8 @@ impl Facility {
 
     /// Reads a facility file and checks it (see [`Facility::check`]).
     pub fn load_checked(path: &Path, today: Option<NaiveDate>) -> Result<Checked, LoadError> {
-        let text =
-            std::fs::read_to_string(path).map_err(|source| LoadError::Read { path: path.to_path_buf(), source })?;
-        Facility::check(&text, path, today).map_err(LoadError::Invalid)
+        let bytes = std::fs::read(path).map_err(|source| LoadError::Read { path: path.to_path_buf(), source })?;
+        Facility::check_bytes(&bytes, path, today).map_err(LoadError::Invalid)
     }
 }
 

@@ -155,6 +155,8 @@ pub fn json_message(e: &serde_json::Error, line: &[u8]) -> String {
             });
             match field {
                 Some(field) => format!("field \"{field}\": {what}"),
+                // No field can be told (the line is not valid JSON further on): the column at least.
+                None if !names_itself && e.column() > 0 => format!("{what} (column {})", e.column()),
                 None => what.to_string(),
             }
         }

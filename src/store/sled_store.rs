@@ -109,6 +109,9 @@ impl Database {
             Ok(Err(sled::Error::Io(e))) if e.to_string().contains("could not acquire lock") => {
                 Err(StoreError::InUse { dir: path.parent().unwrap_or(path).to_path_buf(), holder: None })
             }
+            Ok(Err(sled::Error::Io(e))) if super::is_disk_full(&e) => {
+                Err(StoreError::DiskFull { what: "cannot open the record database", path: path.to_path_buf() })
+            }
             Ok(Err(sled::Error::Corruption { .. })) => Err(damaged("sled found corrupted data".into())),
             Ok(Err(e)) => Err(damaged(e.to_string())),
             Err(panic) => Err(damaged(panic_message(panic.as_ref()))),
@@ -117,6 +120,16 @@ impl Database {
 
     fn failed(&self, e: impl std::fmt::Display) -> StoreError {
         StoreError::Database { path: self.path.clone(), message: e.to_string() }
+    }
+
+    /// A failed write to the database: a full disk said as such.
+    fn write_failed(&self, e: &sled::Error) -> StoreError {
+        match e {
+            sled::Error::Io(io) if super::is_disk_full(io) => {
+                StoreError::DiskFull { what: "cannot write the record database", path: self.path.clone() }
+            }
+            other => self.failed(other),
+        }
     }
 
     fn meta_u64(&self, key: &[u8]) -> Result<Option<u64>, StoreError> {
@@ -185,8 +198,12 @@ impl Database {
                 meta.insert(META_APPLIED, &journal_applied.to_be_bytes())?;
                 Ok::<(), ConflictableTransactionError<()>>(())
             });
-        result.map_err(|e| self.failed(format!("{e:?}")))?;
-        self.db.flush().map_err(|e| self.failed(e))?;
+        match result {
+            Ok(()) => {}
+            Err(TransactionError::Storage(e)) => return Err(self.write_failed(&e)),
+            Err(TransactionError::Abort(())) => return Err(self.failed("the transaction was aborted")),
+        }
+        self.db.flush().map_err(|e| self.write_failed(&e))?;
         Ok(())
     }
 
@@ -280,10 +297,15 @@ pub(crate) fn panic_message(panic: &(dyn std::any::Any + Send)) -> String {
 /// The durable record store of one data folder.
 pub struct SledStore {
     dir: PathBuf,
-    database: Database,
+    /// `None` after a failed write until it opens again (see [`SledStore::recover`]).
+    database: Option<Database>,
     journal: Writer,
     device: DeviceId,
     opened: OpenReport,
+    /// The journal holds records the database may lack (a save whose
+    /// database write failed): the database is opened again and caught up
+    /// before the next save.
+    behind: bool,
     // Declared last so that it is released last.
     _lock: FolderLock,
 }
@@ -367,7 +389,15 @@ impl SledStore {
             opened.set_aside = opened.set_aside.or(set_aside);
         }
         let journal = Writer::open(&journal_path)?;
-        Ok(SledStore { dir: dir.to_path_buf(), database, journal, device, opened, _lock: lock })
+        Ok(SledStore {
+            dir: dir.to_path_buf(),
+            database: Some(database),
+            journal,
+            device,
+            opened,
+            behind: false,
+            _lock: lock,
+        })
     }
 
     fn start_journal(
@@ -376,6 +406,11 @@ impl SledStore {
         opened: &mut OpenReport,
     ) -> Result<(DeviceId, u64), StoreError> {
         let device = device.unwrap_or_else(DeviceId::generate);
+        // A first use cut short between creating the file and writing its
+        // header leaves it empty: nothing to keep, so start it again.
+        if std::fs::metadata(path).is_ok_and(|m| m.len() == 0) {
+            std::fs::remove_file(path).map_err(|e| StoreError::io("cannot replace", path, e))?;
+        }
         let writer = Writer::create(path, &Header::new(device))?;
         opened.created = true;
         Ok((device, writer.len()))
@@ -394,6 +429,35 @@ impl SledStore {
     /// What opening had to do.
     pub fn opened(&self) -> &OpenReport {
         &self.opened
+    }
+
+    fn database(&self) -> Result<&Database, StoreError> {
+        self.database.as_ref().ok_or_else(|| StoreError::Database {
+            path: self.dir.join(DB_DIR),
+            message: "it failed to write earlier and has not opened again yet".into(),
+        })
+    }
+
+    /// After a save whose database write failed (sled refuses every later
+    /// write once one has failed, for example on a full disk): opens the
+    /// database again and applies the journal lines it lacks.
+    fn recover(&mut self) -> Result<(), StoreError> {
+        // Drop the failed database first: sled holds its files until then.
+        self.database = None;
+        let database = Database::open(&self.dir.join(DB_DIR))?;
+        let (_, _, applied) = database.meta()?;
+        let journal_path = self.journal_path();
+        let header_end = match journal::scan_header(&journal_path)? {
+            journal::HeaderState::Good(_, end) => end,
+            _ => 0,
+        };
+        let from = applied.max(header_end);
+        if from < self.journal.len() {
+            catch_up(&database, &journal_path, from)?;
+        }
+        self.database = Some(database);
+        self.behind = false;
+        Ok(())
     }
 }
 
@@ -429,7 +493,13 @@ impl Store for SledStore {
     }
 
     fn append(&mut self, records: &[Record]) -> Result<Appended, StoreError> {
-        let plan = self.database.plan(plan::serialise(records))?;
+        if self.behind {
+            // Whatever an earlier save left in the journal alone goes in
+            // first, so the database's journal position never passes a
+            // record it lacks.
+            self.recover()?;
+        }
+        let plan = self.database()?.plan(plan::serialise(records))?;
         let appended = Appended { added: plan.new.len(), skipped: plan.skipped };
         if plan.new.is_empty() {
             return Ok(appended);
@@ -438,30 +508,35 @@ impl Store for SledStore {
         // The journal first: once it is synced the records survive whatever
         // happens to the database, and the next open applies them.
         let journal_len = self.journal.append(&lines)?;
-        self.database.apply(&plan, journal_len).map_err(|e| StoreError::JournalOnly {
-            message: match e {
-                StoreError::Database { message, .. } => message,
-                other => other.to_string(),
-            },
+        self.database()?.apply(&plan, journal_len).map_err(|e| {
+            self.behind = true;
+            StoreError::JournalOnly {
+                message: match e {
+                    StoreError::Database { message, .. } => message,
+                    StoreError::DiskFull { .. } => "the disk is full; free some space on it".to_string(),
+                    other => other.to_string(),
+                },
+            }
         })?;
         Ok(appended)
     }
 
     fn get(&self, id: Ulid) -> Result<Option<Record>, StoreError> {
-        self.database.get(id)
+        self.database()?.get(id)
     }
 
     fn corrections_of(&self, id: Ulid) -> Result<Vec<Record>, StoreError> {
-        self.database.corrections_of(id)
+        self.database()?.corrections_of(id)
     }
 
     fn history(&self, targets: &[Target], range: &TimeRange) -> Result<Vec<Record>, StoreError> {
-        let ids = self.database.history_ids(targets, range)?;
-        self.database.records_of(ids)
+        let database = self.database()?;
+        let ids = database.history_ids(targets, range)?;
+        database.records_of(ids)
     }
 
     fn all(&self) -> Result<Box<dyn Iterator<Item = Result<Record, StoreError>> + '_>, StoreError> {
-        let db = &self.database;
+        let db = self.database()?;
         Ok(Box::new(db.records.iter().map(move |item| {
             let (key, bytes) = item.map_err(|e| db.failed(e))?;
             let id = keys::id_from_bytes(&key).ok_or_else(|| db.failed("a record key is not an id"))?;
@@ -470,6 +545,6 @@ impl Store for SledStore {
     }
 
     fn len(&self) -> Result<usize, StoreError> {
-        Ok(self.database.records.len())
+        Ok(self.database()?.records.len())
     }
 }

@@ -657,6 +657,18 @@ fn check_binding(context: Context, chord: &KeyChord, action: Option<Action>) -> 
     Ok(())
 }
 
+/// A keymap file's bytes as text: a file that is not UTF-8 is a mistake at
+/// the line of its first bad byte.
+pub fn keymap_text<'a>(bytes: &'a [u8], origin: &str) -> Result<&'a str, KeymapErrors> {
+    crate::text::decode(bytes).map_err(|bad| {
+        KeymapErrors(vec![KeymapError {
+            file: Arc::from(origin),
+            line: bad.line,
+            reason: format!("column {}: {bad}", bad.column),
+        }])
+    })
+}
+
 impl Keymap {
     /// The built-in keymap (`keymaps/default.toml`).
     pub fn default_map() -> Keymap {

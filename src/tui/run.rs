@@ -21,9 +21,25 @@ use super::state::{App, Effect, Input, update};
 use super::terminal::{Session, TerminalError};
 use super::view;
 use crate::model::record::Record;
+use crate::store::{Store, StoreError, TimeRange};
 
 /// How long the loop waits for a key before it lets time pass (ages, due marks).
 pub const TICK: Duration = Duration::from_secs(30);
+
+/// How far back the screen loads records: the longest chart period.
+pub const LOADED_DAYS: i64 = 90;
+
+/// The records the screen shows: those taken in the last [`LOADED_DAYS`]
+/// days (and later), with the corrections of them. A range scan of the time
+/// index, so starting the screen costs the same with a year of history as
+/// with ten (a correction of an older record is not applied anyway).
+pub fn records_to_show(store: &dyn Store, now: DateTime<FixedOffset>) -> Result<Vec<Record>, StoreError> {
+    let since = (now - chrono::Duration::days(LOADED_DAYS)).with_timezone(&chrono::Utc);
+    let mut records = store.history(&[], &TimeRange::new(Some(since), None))?;
+    // Oldest first, the order a history is built in.
+    records.reverse();
+    Ok(records)
+}
 
 /// Where the screen's records go.
 pub trait Records {
@@ -114,5 +130,40 @@ pub fn run_loop<B: Backend>(
             };
             effects.extend(update(app, keymap, answer, clock()));
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::model::record::{Correction, Reading, RecordBody, Target};
+    use crate::store::MemStore;
+
+    fn reading_at(store: &MemStore, at: DateTime<FixedOffset>) -> Record {
+        let mut r = Reading::new(Target::Tank("Q1".into()));
+        r.measurements.ph = Some(7.2);
+        Record::new(store.device(), "Ana", at, RecordBody::Reading(r))
+    }
+
+    #[test]
+    fn the_screen_loads_the_last_ninety_days_and_their_corrections() {
+        let now = DateTime::parse_from_rfc3339("2026-12-01T07:30:00+01:00").unwrap();
+        let mut store = MemStore::new();
+        let old = reading_at(&store, now - chrono::Duration::days(LOADED_DAYS + 1));
+        let recent = reading_at(&store, now - chrono::Duration::days(LOADED_DAYS - 1));
+        let fix = Record::new(
+            store.device(),
+            "Ana",
+            now,
+            RecordBody::Correction(Correction {
+                supersedes: recent.id,
+                replacement: None,
+                reason: "wrong tank".into(),
+            }),
+        );
+        store.append(&[old.clone(), recent.clone(), fix.clone()]).unwrap();
+        let shown: Vec<_> = records_to_show(&store, now).unwrap().into_iter().map(|r| r.id).collect();
+        assert!(shown.contains(&recent.id) && shown.contains(&fix.id), "{shown:?}");
+        assert!(!shown.contains(&old.id));
     }
 }

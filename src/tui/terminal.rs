@@ -3,9 +3,9 @@
 //! The screen starts only when standard input and output are both terminals
 //! (otherwise a clear message, not a panic); [`ratatui::try_init`] switches to
 //! raw mode and the alternate screen and installs a panic hook that restores
-//! the terminal. [`Session`] restores it again when dropped, so every way out
-//! (a normal quit, an error, Ctrl-C handled as a key in raw mode) leaves the
-//! terminal usable.
+//! the terminal. [`Session`] restores it when dropped (except while a panic
+//! unwinds: the hook did it), so every way out (a normal quit, an error,
+//! Ctrl-C handled as a key in raw mode, a panic) leaves the terminal usable.
 
 use std::io::{self, IsTerminal};
 use std::ops::{Deref, DerefMut};
@@ -84,6 +84,14 @@ impl DerefMut for Session {
 
 impl Drop for Session {
     fn drop(&mut self) {
+        // On a panic the hook from `try_init` has already restored the
+        // terminal and printed the message below the screen. Restoring twice
+        // would leave the alternate screen twice, and the second time the
+        // terminal puts the cursor back where the screen started, so the shell
+        // prompt would overwrite the panic message (found by the pseudo-terminal test).
+        if std::thread::panicking() {
+            return;
+        }
         let _ = self.terminal.show_cursor();
         let _ = ratatui::try_restore();
     }
