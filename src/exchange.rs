@@ -94,14 +94,15 @@ pub enum ExchangeError {
     #[error(transparent)]
     Store(#[from] StoreError),
     /// A file or folder could not be read or written.
-    #[error("{what} {}: {source}", .path.display())]
+    #[error("{what} {}: {error}", .path.display())]
     Io {
         /// What was being done ("cannot write", ...).
         what: &'static str,
         /// The file or folder.
         path: PathBuf,
-        /// The system's error.
-        source: std::io::Error,
+        /// The system's error. Said in the message, and so not also given as
+        /// the error's source (a chain printed in full would say it twice).
+        error: std::io::Error,
     },
     /// The shared folder of a sync is missing.
     #[error(
@@ -124,7 +125,7 @@ pub enum ExchangeError {
 
 impl ExchangeError {
     pub(crate) fn io(what: &'static str, path: impl Into<PathBuf>, source: std::io::Error) -> ExchangeError {
-        ExchangeError::Io { what, path: path.into(), source }
+        ExchangeError::Io { what, path: path.into(), error: source }
     }
 }
 

@@ -140,14 +140,15 @@ pub enum StoreError {
         id: Ulid,
     },
     /// A file could not be read or written.
-    #[error("{what} {}: {source}", .path.display())]
+    #[error("{what} {}: {error}", .path.display())]
     Io {
         /// What was being done ("cannot write", ...).
         what: &'static str,
         /// The file or folder.
         path: PathBuf,
-        /// The system's error.
-        source: std::io::Error,
+        /// The system's error. Said in the message, and so not also given as
+        /// the error's source (a chain printed in full would say it twice).
+        error: std::io::Error,
     },
     /// The disk holding the data folder is full: what was being saved was not.
     #[error(
@@ -222,7 +223,7 @@ impl StoreError {
         if is_disk_full(&source) {
             return StoreError::DiskFull { what, path: path.into() };
         }
-        StoreError::Io { what, path: path.into(), source }
+        StoreError::Io { what, path: path.into(), error: source }
     }
 }
 

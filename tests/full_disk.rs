@@ -127,6 +127,8 @@ fn check_refusal(out: &Output, method: Method, data: &Path) {
         }
         Method::FileSizeLimit => {
             assert!(stderr.contains("File too large"), "the message does not name the write error: {stderr}");
+            assert!(!stderr.contains("rebuild"), "a refused write is not damage: {stderr}");
+            assert_eq!(stderr.matches("File too large").count(), 1, "said once: {stderr}");
             assert!(stderr.contains(&data.display().to_string()), "the message names no file: {stderr}");
         }
     }

@@ -112,6 +112,18 @@ impl Database {
             Ok(Err(sled::Error::Io(e))) if super::is_disk_full(&e) => {
                 Err(StoreError::DiskFull { what: "cannot open the record database", path: path.to_path_buf() })
             }
+            // The system refused a write (a file-size limit, a read-only disk, permissions):
+            // nothing is damaged, so say what was refused rather than send the person to `rebuild`.
+            Ok(Err(sled::Error::Io(e)))
+                if matches!(
+                    e.kind(),
+                    std::io::ErrorKind::FileTooLarge
+                        | std::io::ErrorKind::ReadOnlyFilesystem
+                        | std::io::ErrorKind::PermissionDenied
+                ) =>
+            {
+                Err(StoreError::Io { what: "cannot open the record database", path: path.to_path_buf(), error: e })
+            }
             Ok(Err(sled::Error::Corruption { .. })) => Err(damaged("sled found corrupted data".into())),
             Ok(Err(e)) => Err(damaged(e.to_string())),
             Err(panic) => Err(damaged(panic_message(panic.as_ref()))),
