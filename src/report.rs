@@ -447,7 +447,7 @@ pub struct Concern {
     /// The tanks of the selection on it.
     pub tanks: Vec<String>,
     /// The tank whose judgement stands for the water: on a system, the first
-    /// of the most severe (its species set the limits of the advice).
+    /// of the most severe (its species' band edges; heater and salt steps suit every species on the water).
     pub judged_for: String,
     /// Those tanks by their own band (against their own species), worst first.
     pub tank_bands: Vec<TankBands>,

@@ -5,7 +5,7 @@ use std::io::{self, Write};
 
 use tankwalk::numfmt::sig;
 use tankwalk::rules::latent::LatentBasis;
-use tankwalk::rules::{Action, Assessment, Biofilter};
+use tankwalk::rules::{Action, Assessment};
 
 /// Where a latent pH comes from, in words.
 pub fn latent_basis(basis: LatentBasis) -> &'static str {
@@ -70,18 +70,7 @@ pub fn write_text(w: &mut dyn Write, a: &Assessment) -> io::Result<()> {
             ),
         )?;
     }
-    let filter = match &a.biofilter {
-        Biofilter::Cycling { reason, .. } => format!("cycling: {reason}"),
-        Biofilter::AtRisk { until, causes } => format!("at risk until {until}: {}", causes.join("; ")),
-        Biofilter::Established => "established".to_string(),
-        Biofilter::RisingInEstablished { possible_causes } if possible_causes.is_empty() => {
-            "established, but ammonia is rising".to_string()
-        }
-        Biofilter::RisingInEstablished { possible_causes } => {
-            format!("established, ammonia rising; recent: {}", possible_causes.join("; "))
-        }
-    };
-    row(w, "biofilter", filter)?;
+    row(w, "biofilter", a.biofilter.describe())?;
     if !a.missing.is_empty() {
         row(w, "missing", format!("{} (needed for the NH3 figure)", a.missing.join(", ")))?;
     }

@@ -285,7 +285,7 @@ fn concern(o: &mut String, report: &RoundReport, c: &Concern) {
     if let Some(t) = &c.trend {
         fact(o, "Trend", &escape(&words::trend(t)));
     }
-    fact(o, "Biofilter", &escape(&words::biofilter(&c.biofilter)));
+    fact(o, "Biofilter", &escape(&c.biofilter.describe()));
     let _ = writeln!(o, "</dl>");
     if !c.actions.is_empty() {
         let _ = write!(o, "<h4>Suggested</h4>\n<ol class=\"actions\">\n");

@@ -165,7 +165,7 @@ fn concern(o: &mut String, report: &RoundReport, number: usize, c: &Concern) {
     if let Some(t) = &c.trend {
         let _ = writeln!(o, "- Trend: {}", words::trend(t));
     }
-    let _ = writeln!(o, "- Biofilter: {}", escape(&words::biofilter(&c.biofilter)));
+    let _ = writeln!(o, "- Biofilter: {}", escape(&c.biofilter.describe()));
     let _ = writeln!(o);
     if !c.actions.is_empty() {
         let _ = writeln!(o, "**Suggested**\n");

@@ -182,7 +182,7 @@ fn concern(o: &mut String, report: &RoundReport, number: usize, c: &Concern) {
     if let Some(t) = &c.trend {
         let _ = writeln!(o, "{indent}Trend: {}", words::trend(t));
     }
-    let _ = writeln!(o, "{indent}Biofilter: {}", words::biofilter(&c.biofilter));
+    let _ = writeln!(o, "{indent}Biofilter: {}", c.biofilter.describe());
     if !c.actions.is_empty() {
         let _ = writeln!(o, "{indent}Suggested:");
         for (i, a) in c.actions.iter().enumerate() {

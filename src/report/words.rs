@@ -7,7 +7,6 @@ use crate::core::band::Band;
 use crate::model::facility::TemperatureUnit;
 use crate::model::record::{EventKind, Target};
 use crate::numfmt::sig;
-use crate::rules::Biofilter;
 use crate::rules::latent::LatentBasis;
 use crate::rules::trend::Trend;
 
@@ -209,7 +208,7 @@ pub fn tank_bands(c: &super::Concern) -> String {
 pub fn judged_for(c: &super::Concern) -> Option<String> {
     (matches!(c.target, Target::System(_)) && c.tanks.len() > 1).then(|| {
         format!(
-            "judged for tank {}, the first of the most severe on the system: its species set the limits of the advice",
+            "judged for tank {}, the first of the most severe on the system (its species' band edges); heater and salt steps suit every species on the shared water",
             c.judged_for
         )
     })
@@ -256,21 +255,6 @@ pub fn trend(t: &Trend) -> String {
         sig(t.rate_per_day, 2),
         t.readings
     )
-}
-
-/// The biofilter in words.
-pub fn biofilter(b: &Biofilter) -> String {
-    match b {
-        Biofilter::Cycling { reason, .. } => format!("cycling: {reason}"),
-        Biofilter::AtRisk { until, causes } => format!("at risk until {until}: {}", causes.join("; ")),
-        Biofilter::Established => "established".to_string(),
-        Biofilter::RisingInEstablished { possible_causes } if possible_causes.is_empty() => {
-            "established, but ammonia is rising".to_string()
-        }
-        Biofilter::RisingInEstablished { possible_causes } => {
-            format!("established, ammonia rising; recent: {}", possible_causes.join("; "))
-        }
-    }
 }
 
 /// The one-paragraph summary a reader sees first.

@@ -98,6 +98,21 @@ pub enum Biofilter {
 }
 
 impl Biofilter {
+    /// The state in words, with its reason or causes.
+    pub fn describe(&self) -> String {
+        match self {
+            Biofilter::Cycling { reason, .. } => format!("cycling: {reason}"),
+            Biofilter::AtRisk { until, causes } => format!("at risk until {until}: {}", causes.join("; ")),
+            Biofilter::Established => "established".to_string(),
+            Biofilter::RisingInEstablished { possible_causes } if possible_causes.is_empty() => {
+                "established, but ammonia is rising".to_string()
+            }
+            Biofilter::RisingInEstablished { possible_causes } => {
+                format!("established, ammonia rising; recent: {}", possible_causes.join("; "))
+            }
+        }
+    }
+
     /// Short name for tables.
     pub fn name(&self) -> &'static str {
         match self {
