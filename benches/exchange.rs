@@ -12,9 +12,10 @@
 //! `/proc/self/status`), reset before each step (Linux `clear_refs` 5), so
 //! each step's figure is its own peak, the store's caches included.
 
-use std::fs::{self, File};
-use std::io::Write;
-use std::path::Path;
+#[path = "support/plain_write.rs"]
+mod plain;
+use plain::plain_write;
+use std::fs;
 use std::time::{Duration, Instant};
 
 use chrono::{FixedOffset, TimeZone};
@@ -97,23 +98,6 @@ fn measured<T>(step: impl FnOnce() -> T) -> (T, Duration, Memory) {
 fn median(mut xs: Vec<f64>) -> f64 {
     xs.sort_by(f64::total_cmp);
     xs[xs.len() / 2]
-}
-
-/// Writes `bytes` bytes in 64 KiB pieces to a new file and syncs it, as the export does.
-fn plain_write(path: &Path, bytes: u64) -> Duration {
-    let chunk = vec![b'x'; 64 * 1024];
-    let started = Instant::now();
-    let mut file = std::io::BufWriter::with_capacity(1 << 16, File::create(path).unwrap());
-    let mut left = bytes;
-    while left > 0 {
-        let n = left.min(chunk.len() as u64) as usize;
-        file.write_all(&chunk[..n]).unwrap();
-        left -= n as u64;
-    }
-    file.into_inner().unwrap().sync_all().unwrap();
-    let took = started.elapsed();
-    fs::remove_file(path).unwrap();
-    took
 }
 
 /// The timings of one kind of export, per round.

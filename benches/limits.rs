@@ -26,6 +26,9 @@
 //! The page cache is warm: these are the figures of a laptop that opened the
 //! store before, not of the first open after a reboot.
 
+#[path = "support/plain_write.rs"]
+mod plain;
+use plain::plain_write;
 use std::collections::BTreeMap;
 use std::hint::black_box;
 use std::path::PathBuf;
@@ -406,24 +409,6 @@ fn measured<T>(step: impl FnOnce() -> T) -> (T, Duration, f64) {
     let out = step();
     let took = started.elapsed();
     (out, took, memory_mib("VmHWM") - before)
-}
-
-/// The same number of bytes written in 64 KiB pieces and synced: the floor of an export.
-fn plain_write(path: &std::path::Path, bytes: u64) -> Duration {
-    use std::io::Write;
-    let chunk = vec![b'x'; 64 * 1024];
-    let started = Instant::now();
-    let mut file = std::io::BufWriter::with_capacity(1 << 16, std::fs::File::create(path).unwrap());
-    let mut left = bytes;
-    while left > 0 {
-        let n = left.min(chunk.len() as u64) as usize;
-        file.write_all(&chunk[..n]).unwrap();
-        left -= n as u64;
-    }
-    file.into_inner().unwrap().sync_all().unwrap();
-    let took = started.elapsed();
-    std::fs::remove_file(path).unwrap();
-    took
 }
 
 /// SQLite importing the same file: each line read, parsed and checked, saved
