@@ -72,6 +72,37 @@ struct Water {
     story: Story,
 }
 
+impl Water {
+    /// A water with nothing special happening: temperature and pH near the
+    /// middle of its species' ranges (pH held within `ph_range`), a little
+    /// ammonia (up to 0.1 + `tan_spread` mg/L TAN-N), nitrite and nitrate.
+    fn steady(
+        target: Target,
+        (temp, ph): (f64, f64),
+        ph_range: (f64, f64),
+        tan_spread: f64,
+        salinity: f64,
+        volume_l: f64,
+        rng: &mut Rng,
+    ) -> Water {
+        let temp_c = round_to(temp, 0.5);
+        let ph = round_to(ph.clamp(ph_range.0, ph_range.1), 0.1);
+        Water {
+            target,
+            temp_c,
+            ph,
+            usual_temp_c: temp_c,
+            usual_ph: ph,
+            tan: 0.1 + tan_spread * rng.unit(),
+            nitrite: 0.05 * rng.unit(),
+            nitrate: 10.0 + 20.0 * rng.unit(),
+            salinity,
+            volume_l,
+            story: Story::Steady,
+        }
+    }
+}
+
 /// Something that happens to one water over the history.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 enum Story {
@@ -96,36 +127,30 @@ fn waters(facility: &Facility, rng: &mut Rng) -> Vec<Water> {
     let mut waters = Vec::new();
     for system in &facility.systems {
         let first = facility.tanks_on(system).into_iter().next();
-        let (temp, ph) = middle(first, facility);
-        waters.push(Water {
-            target: Target::System(system.id.as_str().to_string()),
-            temp_c: round_to(temp, 0.5),
-            ph: round_to(ph.clamp(6.8, 8.2), 0.1),
-            usual_temp_c: round_to(temp, 0.5),
-            usual_ph: round_to(ph.clamp(6.8, 8.2), 0.1),
-            tan: 0.1 + 0.15 * rng.unit(),
-            nitrite: 0.05 * rng.unit(),
-            nitrate: 10.0 + 20.0 * rng.unit(),
-            salinity: system.salinity_g_l,
-            volume_l: system.volume_l,
-            story: Story::Steady,
-        });
+        let target = Target::System(system.id.as_str().to_string());
+        let ph_range = (6.8, 8.2);
+        waters.push(Water::steady(
+            target,
+            middle(first, facility),
+            ph_range,
+            0.15,
+            system.salinity_g_l,
+            system.volume_l,
+            rng,
+        ));
     }
     for tank in facility.tanks.iter().filter(|t| t.system.is_none()) {
-        let (temp, ph) = middle(Some(tank), facility);
-        waters.push(Water {
-            target: Target::Tank(tank.id.as_str().to_string()),
-            temp_c: round_to(temp, 0.5),
-            ph: round_to(ph.clamp(6.0, 8.4), 0.1),
-            usual_temp_c: round_to(temp, 0.5),
-            usual_ph: round_to(ph.clamp(6.0, 8.4), 0.1),
-            tan: 0.1 + 0.2 * rng.unit(),
-            nitrite: 0.05 * rng.unit(),
-            nitrate: 10.0 + 20.0 * rng.unit(),
-            salinity: tank.salinity_g_l,
-            volume_l: tank.volume_l,
-            story: Story::Steady,
-        });
+        let target = Target::Tank(tank.id.as_str().to_string());
+        let ph_range = (6.0, 8.4);
+        waters.push(Water::steady(
+            target,
+            middle(Some(tank), facility),
+            ph_range,
+            0.2,
+            tank.salinity_g_l,
+            tank.volume_l,
+            rng,
+        ));
     }
     // The stories: the second shared water's filter is hurt, the first
     // standalone water is acid, the last standalone one has sick fish.
